@@ -1,0 +1,68 @@
+// Expressions in model files: parsing, and dimension inference. No evaluation semantics beyond the tree.
+#pragma once
+
+#include <cstddef>
+#include <functional>
+#include <memory>
+#include <optional>
+#include <string>
+#include <string_view>
+#include <vector>
+
+#include "units/units.hpp"
+
+namespace plateau::expr {
+
+enum class Op { Num, Var, Add, Sub, Mul, Div, Pow, Neg, Exp, Log, Sqrt };
+
+struct Node;
+using Ptr = std::shared_ptr<const Node>;
+
+struct Node {
+    Op op = Op::Num;
+    double num = 0.0;      // Op::Num
+    std::string name;      // Op::Var
+    Ptr a, b;              // operands (a for unary ops and functions)
+    std::size_t begin = 0; // source span [begin, end) in the parsed text, 0-based byte offsets
+    std::size_t end = 0;
+};
+
+// Parses +, -, *, /, ^ (right-associative, binds tighter than unary minus on its left: -x^2 = -(x^2)),
+// unary minus and plus, parentheses, numbers (1, 1.5, .5, 1e-3, 2.5E+4), identifiers ([A-Za-z_][A-Za-z0-9_]*),
+// and calls exp(x), log(x) (natural), sqrt(x). Any other function name (min, max, abs, ...) is rejected with a
+// message saying a Taylor series cannot cross a kink or jump. Nesting deeper than 200 levels is an error.
+// Throws plateau::TextError with the offset of the problem.
+Ptr parse(std::string_view text);
+
+// Dimension of an identifier, or nullopt if unknown.
+using DimLookup = std::function<std::optional<units::Dim>(std::string_view name)>;
+
+// Infers the dimension of `e`. Errors (TextError with the span of the offending sub-expression):
+// unknown identifier; adding/subtracting unlike dimensions ("cannot add mg/L and mg"); exp/log/sqrt of a
+// dimensioned value (sqrt allows even exponents); an exponent that is dimensioned; an exponent that is not a
+// numeric constant when the base has a dimension; a non-integer constant exponent of a dimensioned base.
+// `is_constant(name)` tells whether an identifier is constant over time (parameters are; compartments and `t`
+// are not): exponents may only use constants.
+units::Dim infer_dim(const Node& e, const DimLookup& lookup,
+                     const std::function<bool(std::string_view)>& is_constant);
+
+// Every identifier used, in order of first appearance.
+std::vector<std::string> identifiers(const Node& e);
+
+// The expression as text (fully parenthesised where needed), for messages and the report.
+std::string to_string(const Node& e);
+
+// Folds a constant expression of numbers only; nullopt if it uses an identifier.
+std::optional<double> fold_number(const Node& e);
+
+}  // namespace plateau::expr
+
+namespace plateau::expr {
+
+// Value of an identifier for evaluate(); throws if unknown.
+using ValueLookup = std::function<double(std::string_view name)>;
+
+// Evaluates `e` in double arithmetic (used for constant expressions such as a route's fraction or lag).
+double evaluate(const Node& e, const ValueLookup& value);
+
+}  // namespace plateau::expr

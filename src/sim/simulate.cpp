@@ -1,0 +1,90 @@
+#include "sim/simulate.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+
+namespace plateau::sim {
+
+taylor::Tape model_tape(const model::Model& m) {
+    taylor::SystemSpec spec;
+    for (const auto& c : m.compartments) spec.states.push_back(c.name);
+    for (const auto& p : m.parameters) spec.params.push_back(p.name);
+    for (const auto& r : m.rates) spec.rhs.push_back(r.expr);
+    for (const auto& o : m.outputs) spec.outputs.push_back(o.expr);
+    return taylor::compile(spec);
+}
+
+Simulation simulate(const model::Model& m, std::span<const double> params, std::vector<Dose> doses, double t_end,
+                    const Options& opt) {
+    Simulation sim;
+    sim.n_states = static_cast<int>(m.compartments.size());
+    for (const auto& c : m.compartments) sim.series.push_back(c.name);
+    for (const auto& o : m.outputs) sim.series.push_back(o.name);
+    sim.end = t_end;
+
+    const std::vector<Event> events = build_events(m, params, doses);
+    sim.doses = std::move(doses);
+
+    taylor::Stepper stepper(model_tape(m), params, opt.tol, opt.order);
+    sim.order = stepper.order();
+    sim.trajectory = traj::Trajectory(stepper.n_series(), stepper.order());
+
+    const std::size_t nc = m.compartments.size();
+    std::vector<double> x(nc, 0.0), u(nc, 0.0), coeffs;
+    const std::size_t stride = static_cast<std::size_t>(stepper.order()) + 1;
+    double t = 0.0;
+    std::size_t next = 0;
+    while (true) {
+        // Apply every event due now (events before 0 are applied at 0).
+        while (next < events.size() && events[next].time <= t + 1e-9 * std::max(1.0, std::abs(t))) {
+            for (std::size_t c = 0; c < nc; ++c) {
+                x[c] += events[next].bolus[c];
+                u[c] += events[next].rate_change[c];
+                // Round-off in summing opposite rate changes must not leave a tiny phantom infusion.
+                if (std::abs(u[c]) < 1e-12 * std::abs(events[next].rate_change[c])) u[c] = 0.0;
+            }
+            ++next;
+        }
+        if (t >= t_end) break;
+        const double stop = next < events.size() ? std::min(events[next].time, t_end) : t_end;
+        while (t < stop) {
+            if (sim.steps >= opt.max_steps) {
+                sim.outcome = taylor::Outcome::StepLimit;
+                sim.failed_at = t;
+                return sim;
+            }
+            const double h_max = stop - t;
+            taylor::StepResult r = stepper.step(t, x, u, h_max, coeffs);
+            if (r.outcome != taylor::Outcome::Ok) {
+                sim.outcome = r.outcome;
+                sim.failed_at = t;
+                return sim;
+            }
+            double h = r.h;
+            bool lands = r.clipped || h_max - h <= 1e-12 * std::max(1.0, stop);
+            if (lands) h = h_max;
+            sim.trajectory.append(t, h, coeffs);
+            ++sim.steps;
+            for (std::size_t c = 0; c < nc; ++c) {
+                std::span<const double> p(coeffs.data() + c * stride, stride);
+                double v = 0.0;
+                for (std::size_t k = stride; k-- > 0;) v = v * h + p[k];
+                x[c] = v;
+                if (!std::isfinite(v)) {
+                    sim.outcome = taylor::Outcome::NonFinite;
+                    sim.failed_at = t + h;
+                    return sim;
+                }
+            }
+            t = lands ? stop : t + h;
+        }
+    }
+    return sim;
+}
+
+Simulation simulate(const regimen::Regimen& r, const Options& opt) {
+    return simulate(r.model, r.parameter_values(), expand_doses(r), r.horizon.until, opt);
+}
+
+}  // namespace plateau::sim

@@ -1,0 +1,132 @@
+#include "trajectory/poly.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <cstdint>
+
+#include <boost/math/tools/toms748_solve.hpp>
+
+namespace plateau::traj {
+
+double horner(std::span<const double> c, double tau) {
+    double v = 0.0;
+    for (std::size_t k = c.size(); k-- > 0;) v = v * tau + c[k];
+    return v;
+}
+
+double horner_derivative(std::span<const double> c, double tau) {
+    double v = 0.0;
+    for (std::size_t k = c.size(); k-- > 1;) v = v * tau + static_cast<double>(k) * c[k];
+    return v;
+}
+
+double integral_from_zero(std::span<const double> c, double tau) {
+    double v = 0.0;
+    for (std::size_t k = c.size(); k-- > 0;) v = v * tau + c[k] / static_cast<double>(k + 1);
+    return v * tau;
+}
+
+namespace {
+
+// Number of sign changes in a coefficient sequence, ignoring zeros and coefficients negligible against the
+// largest one (round-off noise must not make a root appear).
+int sign_variations(const std::vector<double>& a) {
+    double big = 0.0;
+    for (double x : a) big = std::max(big, std::abs(x));
+    const double floor = big * 1e-15;
+    int v = 0, last = 0;
+    for (double x : a) {
+        if (std::abs(x) <= floor) continue;
+        int s = x > 0 ? 1 : -1;
+        if (last != 0 && s != last) ++v;
+        last = s;
+    }
+    return v;
+}
+
+// In place: q(x) -> q(x + 1) (Taylor shift by one), O(n^2) synthetic division.
+void shift_by_one(std::vector<double>& q) {
+    const std::size_t n = q.size();
+    for (std::size_t i = 0; i + 1 < n; ++i)
+        for (std::size_t k = n - 1; k-- > i;) q[k] += q[k + 1];
+}
+
+// Coefficients of (x+1)^n q(1/(x+1)): reverse, then shift by one. Its sign variations bound the roots in (0,1).
+int variations_on_unit(const std::vector<double>& q) {
+    std::vector<double> r(q.rbegin(), q.rend());
+    shift_by_one(r);
+    return sign_variations(r);
+}
+
+struct Finder {
+    std::span<const double> c;  // original polynomial in τ
+    double level;
+    double h;
+    std::vector<double> roots;
+
+    double f(double tau) const { return horner(c, tau) - level; }
+
+    void refine(double lo, double hi) {
+        double flo = f(lo), fhi = f(hi);
+        if (flo == 0.0) { roots.push_back(lo); return; }
+        if (fhi == 0.0) { roots.push_back(hi); return; }
+        if ((flo < 0) == (fhi < 0)) return;  // no sign change: an even-multiplicity touch or noise
+        std::uintmax_t iters = 200;
+        auto r = boost::math::tools::toms748_solve([this](double x) { return f(x); }, lo, hi, flo, fhi,
+                                                    boost::math::tools::eps_tolerance<double>(52), iters);
+        roots.push_back(0.5 * (r.first + r.second));
+    }
+
+    // q is the polynomial on the unit interval that maps to τ ∈ [lo, lo + width].
+    void isolate(std::vector<double> q, double lo, double width, int depth) {
+        int v = variations_on_unit(q);
+        if (v == 0) return;
+        if (v == 1 || depth >= 48) {
+            refine(lo, lo + width);
+            return;
+        }
+        // Left half: q(x/2); right half: q((x+1)/2) = left half shifted by one.
+        std::vector<double> left = q;
+        double scale = 1.0;
+        for (double& a : left) { a *= scale; scale *= 0.5; }
+        std::vector<double> right = left;
+        shift_by_one(right);
+        const double half = 0.5 * width;
+        isolate(std::move(left), lo, half, depth + 1);
+        if (right.front() == 0.0) roots.push_back(lo + half);  // exact root at the midpoint
+        isolate(std::move(right), lo + half, half, depth + 1);
+    }
+};
+
+std::vector<double> unit_polynomial(std::span<const double> c, double level, double h) {
+    std::vector<double> q(c.begin(), c.end());
+    double hk = 1.0;
+    for (double& a : q) { a *= hk; hk *= h; }
+    if (!q.empty()) q[0] -= level;
+    while (q.size() > 1 && q.back() == 0.0) q.pop_back();
+    return q;
+}
+
+}  // namespace
+
+std::vector<double> roots_in(std::span<const double> c, double level, double h) {
+    Finder fd{c, level, h, {}};
+    if (!(h > 0.0) || c.empty()) return {};
+    std::vector<double> q = unit_polynomial(c, level, h);
+    if (q.size() <= 1) return {};  // constant: no isolated roots
+    fd.isolate(std::move(q), 0.0, h, 0);
+    auto& r = fd.roots;
+    r.erase(std::remove_if(r.begin(), r.end(), [h](double x) { return !(x > 0.0 && x < h); }), r.end());
+    std::sort(r.begin(), r.end());
+    r.erase(std::unique(r.begin(), r.end(), [h](double a, double b) { return b - a <= 1e-15 * h; }), r.end());
+    return r;
+}
+
+std::vector<double> critical_points_in(std::span<const double> c, double h) {
+    if (c.size() < 3) return {};
+    std::vector<double> d(c.size() - 1);
+    for (std::size_t k = 1; k < c.size(); ++k) d[k - 1] = static_cast<double>(k) * c[k];
+    return roots_in(d, 0.0, h);
+}
+
+}  // namespace plateau::traj
