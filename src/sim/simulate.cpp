@@ -15,23 +15,16 @@ taylor::Tape model_tape(const model::Model& m) {
     return taylor::compile(spec);
 }
 
-Simulation simulate(const model::Model& m, std::span<const double> params, std::vector<Dose> doses, double t_end,
-                    const Options& opt) {
+Simulation integrate_events(const model::Model& m, taylor::Stepper& stepper, const std::vector<Event>& events,
+                            std::span<const double> x0, double t_end, const Options& opt) {
     Simulation sim;
     sim.n_states = static_cast<int>(m.compartments.size());
-    for (const auto& c : m.compartments) sim.series.push_back(c.name);
-    for (const auto& o : m.outputs) sim.series.push_back(o.name);
     sim.end = t_end;
-
-    const std::vector<Event> events = build_events(m, params, doses);
-    sim.doses = std::move(doses);
-
-    taylor::Stepper stepper(model_tape(m), params, opt.tol, opt.order);
     sim.order = stepper.order();
     sim.trajectory = traj::Trajectory(stepper.n_series(), stepper.order());
 
     const std::size_t nc = m.compartments.size();
-    std::vector<double> x(nc, 0.0), u(nc, 0.0), coeffs;
+    std::vector<double> x(x0.begin(), x0.end()), u(nc, 0.0), coeffs;
     const std::size_t stride = static_cast<std::size_t>(stepper.order()) + 1;
     double t = 0.0;
     std::size_t next = 0;
@@ -62,14 +55,13 @@ Simulation simulate(const model::Model& m, std::span<const double> params, std::
                 return sim;
             }
             double h = r.h;
-            bool lands = r.clipped || h_max - h <= 1e-12 * std::max(1.0, stop);
+            const bool lands = r.clipped || h_max - h <= 1e-12 * std::max(1.0, stop);
             if (lands) h = h_max;
             sim.trajectory.append(t, h, coeffs);
             ++sim.steps;
             for (std::size_t c = 0; c < nc; ++c) {
-                std::span<const double> p(coeffs.data() + c * stride, stride);
                 double v = 0.0;
-                for (std::size_t k = stride; k-- > 0;) v = v * h + p[k];
+                for (std::size_t k = stride; k-- > 0;) v = v * h + coeffs[c * stride + k];
                 x[c] = v;
                 if (!std::isfinite(v)) {
                     sim.outcome = taylor::Outcome::NonFinite;
@@ -81,6 +73,26 @@ Simulation simulate(const model::Model& m, std::span<const double> params, std::
         }
     }
     return sim;
+}
+
+Simulation simulate(const model::Model& m, std::span<const double> params, std::vector<Dose> doses, double t_end,
+                    const Options& opt) {
+    const std::vector<Event> events = build_events(m, params, doses);
+    taylor::Stepper stepper(model_tape(m), params, opt.tol, opt.order);
+    const std::vector<double> x0(m.compartments.size(), 0.0);
+    Simulation sim = integrate_events(m, stepper, events, x0, t_end, opt);
+    for (const auto& c : m.compartments) sim.series.push_back(c.name);
+    for (const auto& o : m.outputs) sim.series.push_back(o.name);
+    sim.doses = std::move(doses);
+    return sim;
+}
+
+std::vector<double> final_state(const Simulation& sim) {
+    std::vector<double> x(static_cast<std::size_t>(sim.n_states), 0.0);
+    if (sim.trajectory.empty()) return x;
+    const double te = sim.trajectory.end();
+    for (int s = 0; s < sim.n_states; ++s) x[static_cast<std::size_t>(s)] = sim.trajectory.left_limit(s, te);
+    return x;
 }
 
 Simulation simulate(const regimen::Regimen& r, const Options& opt) {

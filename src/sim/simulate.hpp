@@ -44,4 +44,13 @@ Simulation simulate(const model::Model& m, std::span<const double> params, std::
 // Convenience: the regimen's doses, parameters and horizon.
 Simulation simulate(const regimen::Regimen& r, const Options& opt = {});
 
+// The core loop, reusable with one stepper: integrates from t = 0 with state x0 up to t_end through `events`.
+// Events at or before 0 are applied at 0 (rate changes add up; so a schedule may start with infusions already
+// running). Fills sim.trajectory, steps and outcome; leaves sim.doses and sim.series empty.
+Simulation integrate_events(const model::Model& m, taylor::Stepper& stepper, const std::vector<Event>& events,
+                            std::span<const double> x0, double t_end, const Options& opt);
+
+// Left limit of the states at the end of a simulation (the values just before any event at the end).
+std::vector<double> final_state(const Simulation& sim);
+
 }  // namespace plateau::sim

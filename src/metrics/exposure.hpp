@@ -1,0 +1,93 @@
+// Every exposure figure of one output over the horizon, from the step polynomials: overall extremes, AUC over
+// the horizon, over asked windows and per 24-h day, time above a threshold and inside a window, crossings,
+// per-dosing-interval figures and the periodic steady state.
+#pragma once
+
+#include <optional>
+#include <string>
+#include <utility>
+#include <vector>
+
+#include "metrics/level.hpp"
+#include "metrics/steady_state.hpp"
+#include "regimen/regimen.hpp"
+#include "sim/simulate.hpp"
+
+namespace plateau::metrics {
+
+struct Request {
+    int output = 0;                                       // model output index
+    std::optional<double> above;                          // threshold, canonical output unit
+    std::optional<std::pair<double, double>> window;      // [low, high], canonical output unit
+    std::vector<std::pair<double, double>> auc_windows;   // extra AUC windows, h
+    sim::Options options;                                 // for the steady-state solve
+};
+
+struct AucWindow {
+    double from = 0.0, to = 0.0, value = 0.0;
+};
+
+struct Day {
+    double start = 0.0, end = 0.0, auc = 0.0;
+    double above_hours = 0.0;   // time above the threshold that day (0 without a threshold)
+    bool partial = false;       // shorter than 24 h (the horizon ends inside it)
+};
+
+struct Interval {
+    double start = 0.0, end = 0.0;
+    Extreme peak;               // right limit at a bolus
+    double trough = 0.0;        // left limit at the end (the value just before the next dose)
+    Extreme minimum;
+    double auc = 0.0;
+    double above_hours = 0.0;
+    double window_hours = 0.0;
+};
+
+struct Steady {
+    bool found = false;
+    std::string why_not;
+    double interval = 0.0;        // tau, h
+    double period_start = 0.0;    // time of the regimen's last period start
+    Extreme peak;                 // time after the period's first dose
+    double trough = 0.0;
+    Extreme minimum;
+    double auc = 0.0;             // over one interval
+    double average = 0.0;         // auc / tau
+    double auc24 = 0.0;           // average × 24 h
+    double above_hours = 0.0;     // per interval
+    double window_hours = 0.0;    // per interval
+    double above_window_hours = 0.0;
+    double first_interval_auc = 0.0;  // the first dose of the pattern alone, over one interval
+    double accumulation = 0.0;        // auc / first_interval_auc
+    std::optional<double> within_10pct;  // first time from which every peak and trough stays within 10 %
+    std::optional<double> within_5pct;
+    int newton_iterations = 0;
+};
+
+struct Exposure {
+    int output = 0;
+    double start = 0.0, end = 0.0;     // horizon
+    double first_dose = 0.0;
+    Extreme peak;
+    Extreme minimum;                   // after the first dose
+    double auc = 0.0;                  // over the horizon
+    std::vector<AucWindow> auc_windows;
+    std::vector<Day> days;
+    std::optional<double> above;       // threshold (canonical)
+    double above_hours = 0.0, above_fraction = 0.0;
+    std::vector<Crossing> crossings;
+    std::optional<double> first_reached;  // first time above the threshold
+    std::optional<std::pair<double, double>> window;
+    double window_hours = 0.0, window_fraction = 0.0;
+    double above_window_hours = 0.0, above_window_fraction = 0.0;
+    std::vector<Interval> intervals;
+    std::optional<Steady> steady;      // when the regimen repeats
+};
+
+// Computes everything for one simulation of the regimen.
+Exposure compute(const regimen::Regimen& r, const sim::Simulation& sim, const Request& req);
+
+// The request a regimen's [targets] table asks for (output, above, window), with options.
+Request request_from(const regimen::Regimen& r, const sim::Options& opt);
+
+}  // namespace plateau::metrics
