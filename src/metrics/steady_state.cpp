@@ -116,7 +116,7 @@ PeriodicSolution solve_periodic(const model::Model& m, std::span<const double> p
     const int max_iter = 60;
     for (out.iterations = 0; out.iterations < max_iter && !failed; ++out.iterations) {
         const double scale = std::max({1e-300, inf_norm(x), dosed});
-        if (r <= 1e-13 * scale) break;
+        if (r <= 1e-13 * dosed + 1e-15 * inf_norm(x)) break;
         // Jacobian of Φ by forward differences (exact up to round-off for the affine maps of linear models).
         Eigen::MatrixXd jac(static_cast<Eigen::Index>(n), static_cast<Eigen::Index>(n));
         const std::vector<double> phix = phi(x);
@@ -154,12 +154,13 @@ PeriodicSolution solve_periodic(const model::Model& m, std::span<const double> p
     }
     out.residual = r;
     out.state = x;
-    const double scale = std::max({1e-300, inf_norm(x), dosed});
     if (failed) {
         out.why_not = "the integration failed while solving for the periodic state";
         return out;
     }
-    if (!(r <= 1e-9 * scale)) {
+    // The residual is judged against the amount dosed per period: near saturation the amounts can be huge
+    // while each period still adds a fixed excess, which is no steady state at all.
+    if (!(r <= 1e-9 * dosed + 1e-13 * inf_norm(x))) {
         out.why_not = "no periodic steady state found: the amounts keep rising from one dose to the next "
                       "(the dose rate may exceed the maximum elimination rate)";
         return out;

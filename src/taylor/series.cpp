@@ -22,7 +22,7 @@ void Expander::set_params(std::span<const double> values) {
     // Constant slots hold only order 0; their higher coefficients stay zero.
     for (int i : constant_) {
         const Instr& in = tape_.code[static_cast<std::size_t>(i)];
-        const double a = in.a >= 0 ? slot(in.a)[0] : 0.0;
+        const double a = in.a >= 0 && in.op != OpCode::Param ? slot(in.a)[0] : 0.0;  // Param: a is an index
         const double b = in.b >= 0 ? slot(in.b)[0] : 0.0;
         double v = 0.0;
         switch (in.op) {

@@ -66,23 +66,36 @@ struct Finder {
 
     double f(double tau) const { return horner(c, tau) - level; }
 
-    void refine(double lo, double hi) {
-        double flo = f(lo), fhi = f(hi);
-        if (flo == 0.0) { roots.push_back(lo); return; }
-        if (fhi == 0.0) { roots.push_back(hi); return; }
-        if ((flo < 0) == (fhi < 0)) return;  // no sign change: an even-multiplicity touch or noise
+    // Refines the one root Descartes' rule found in (lo, hi). Returns false when the ends do not bracket it
+    // (an end is itself a root, or round-off near an end hides the sign change): the caller bisects further.
+    bool refine(double lo, double hi) {
+        const double flo = f(lo), fhi = f(hi);
+        if (flo == 0.0 || fhi == 0.0 || (flo < 0) == (fhi < 0)) return false;
         std::uintmax_t iters = 200;
         auto r = boost::math::tools::toms748_solve([this](double x) { return f(x); }, lo, hi, flo, fhi,
                                                     boost::math::tools::eps_tolerance<double>(52), iters);
         roots.push_back(0.5 * (r.first + r.second));
+        return true;
+    }
+
+    // At the bisection depth limit the interval is a few ulps of h wide: a root of even multiplicity (a touch)
+    // or one that round-off keeps from changing sign; report the point where |p − level| is least if it is
+    // round-off small.
+    void settle(double lo, double hi, double magnitude) {
+        const double mid = 0.5 * (lo + hi);
+        double best = lo, fbest = std::abs(f(lo));
+        for (double x : {mid, hi})
+            if (std::abs(f(x)) < fbest) { best = x; fbest = std::abs(f(x)); }
+        if (fbest <= 1e-12 * magnitude) roots.push_back(best);
     }
 
     // q is the polynomial on the unit interval that maps to τ ∈ [lo, lo + width].
-    void isolate(std::vector<double> q, double lo, double width, int depth) {
-        int v = variations_on_unit(q);
+    void isolate(std::vector<double> q, double lo, double width, int depth, double magnitude) {
+        const int v = variations_on_unit(q);
         if (v == 0) return;
-        if (v == 1 || depth >= 48) {
-            refine(lo, lo + width);
+        if (v == 1 && refine(lo, lo + width)) return;
+        if (depth >= 48) {
+            if (!refine(lo, lo + width)) settle(lo, lo + width, magnitude);
             return;
         }
         // Left half: q(x/2); right half: q((x+1)/2) = left half shifted by one.
@@ -92,9 +105,14 @@ struct Finder {
         std::vector<double> right = left;
         shift_by_one(right);
         const double half = 0.5 * width;
-        isolate(std::move(left), lo, half, depth + 1);
-        if (right.front() == 0.0) roots.push_back(lo + half);  // exact root at the midpoint
-        isolate(std::move(right), lo + half, half, depth + 1);
+        isolate(std::move(left), lo, half, depth + 1, magnitude);
+        // A simple root on the midpoint lies in neither open half: take it when p − level is round-off small
+        // there and the slope is not (near a touch, |p − level| is tiny over a wider stretch).
+        const double m = lo + half;
+        if (right.front() == 0.0 ||
+            (std::abs(f(m)) <= 4e-16 * magnitude && std::abs(horner_derivative(c, m)) * h >= 1e-6 * magnitude))
+            roots.push_back(m);
+        isolate(std::move(right), lo + half, half, depth + 1, magnitude);
     }
 };
 
@@ -114,11 +132,13 @@ std::vector<double> roots_in(std::span<const double> c, double level, double h) 
     if (!(h > 0.0) || c.empty()) return {};
     std::vector<double> q = unit_polynomial(c, level, h);
     if (q.size() <= 1) return {};  // constant: no isolated roots
-    fd.isolate(std::move(q), 0.0, h, 0);
+    double magnitude = 0.0;
+    for (double a : q) magnitude += std::abs(a);
+    fd.isolate(std::move(q), 0.0, h, 0, magnitude);
     auto& r = fd.roots;
     r.erase(std::remove_if(r.begin(), r.end(), [h](double x) { return !(x > 0.0 && x < h); }), r.end());
     std::sort(r.begin(), r.end());
-    r.erase(std::unique(r.begin(), r.end(), [h](double a, double b) { return b - a <= 1e-15 * h; }), r.end());
+    r.erase(std::unique(r.begin(), r.end(), [h](double a, double b) { return b - a <= 1e-12 * h; }), r.end());
     return r;
 }
 

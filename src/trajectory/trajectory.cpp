@@ -86,7 +86,19 @@ std::vector<double> collect(const Trajectory& tr, double a, double b, F&& per_st
 }  // namespace
 
 std::vector<double> Trajectory::level_roots(int series, double level, double a, double b) const {
-    return collect(*this, a, b, [&](std::size_t k) { return roots_in(poly(k, series), level, h_[k]); });
+    std::vector<double> r = collect(*this, a, b, [&](std::size_t k) { return roots_in(poly(k, series), level, h_[k]); });
+    // A root on a boundary where the series is continuous belongs to the step that starts there.
+    for (double t : boundaries(a, b)) {
+        const double before = left_limit(series, t) - level, after = value(series, t) - level;
+        const double scale = std::abs(level) + std::abs(before) + std::abs(after);
+        const bool continuous = std::abs(before - after) <= 1e-12 * std::max(scale, 1e-300);
+        if (continuous && (after == 0.0 || (before < 0) != (after < 0) || std::abs(after) <= 4e-16 * scale))
+            r.push_back(t);
+    }
+    std::sort(r.begin(), r.end());
+    r.erase(std::unique(r.begin(), r.end(), [](double x, double y) { return y - x <= 1e-12 * std::max(1.0, std::abs(y)); }),
+            r.end());
+    return r;
 }
 
 std::vector<double> Trajectory::critical_points(int series, double a, double b) const {

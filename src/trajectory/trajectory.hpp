@@ -42,7 +42,9 @@ public:
     // Exact integral of a series over [a, b] (clamped to the trajectory).
     double integral(int series, double a, double b) const;
 
-    // Times in (a, b) strictly inside steps where the series equals `level`, sorted (see poly.hpp roots_in).
+    // Times in (a, b) where the series equals `level`, sorted, each once: roots inside steps (poly.hpp
+    // roots_in) and roots on step boundaries where the series is continuous. A jump across the level at a dose
+    // is not a root (metrics/level.hpp counts it as a crossing).
     std::vector<double> level_roots(int series, double level, double a, double b) const;
 
     // Interior critical points (roots of the derivative) in (a, b), sorted.

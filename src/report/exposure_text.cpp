@@ -1,0 +1,115 @@
+#include "report/exposure_text.hpp"
+
+#include <string>
+#include <vector>
+
+#include "report/format.hpp"
+
+namespace plateau::report {
+
+namespace {
+
+void row(std::ostream& out, std::string_view label, const std::string& value) {
+    out << "  " << pad_right(label, 34) << value << '\n';
+}
+
+}  // namespace
+
+void write_exposure_text(std::ostream& out, const regimen::Regimen& r, const sim::Simulation& s,
+                         const metrics::Exposure& e, const TextOptions& opt) {
+    const model::Output& o = r.model.outputs[static_cast<std::size_t>(e.output)];
+    const std::string u = o.unit_text;
+    const std::string au = auc_unit(u);
+    auto c = [&](double v) { return num(in_output_unit(o, v)) + " " + u; };
+    auto at = [](double t) { return " at " + hours(t); };
+    (void)s;
+
+    out << "Exposure of '" << o.name << "' (" << u << ") over " << hours(e.start, 1) << " .. " << hours(e.end, 1)
+        << '\n';
+    row(out, "Peak", c(e.peak.value) + at(e.peak.time));
+    row(out, "Minimum after the first dose", c(e.minimum.value) + at(e.minimum.time));
+    row(out, "AUC over the horizon", num(in_output_unit(o, e.auc), 6) + " " + au);
+    for (const auto& w : e.auc_windows)
+        row(out, "AUC " + num(w.from, 4) + " h .. " + num(w.to, 4) + " h", num(in_output_unit(o, w.value), 6) + " " + au);
+    if (!e.days.empty()) {
+        std::string days;
+        for (std::size_t i = 0; i < e.days.size() && i < 3; ++i)
+            days += (i ? ", " : "") + num(in_output_unit(o, e.days[i].auc), 5) + (e.days[i].partial ? " (partial)" : "");
+        if (e.days.size() > 3) days += ", ... last " + num(in_output_unit(o, e.days.back().auc), 5) +
+                                       (e.days.back().partial ? " (partial)" : "");
+        row(out, "AUC per 24-h day (" + au + ")", days);
+    }
+    if (e.above) {
+        row(out, "Time above " + c(*e.above), hours(e.above_hours) + " (" + percent(e.above_fraction) + " of the horizon)");
+        row(out, "First reaches " + c(*e.above), e.first_reached ? "at " + hours(*e.first_reached) : "never");
+        std::string xs;
+        for (std::size_t i = 0; i < e.crossings.size() && i < 6; ++i)
+            xs += (i ? ", " : "") + num(e.crossings[i].time, 5) + (e.crossings[i].up ? " up" : " down");
+        if (e.crossings.size() > 6) xs += ", ... (" + std::to_string(e.crossings.size()) + " in all)";
+        row(out, "Crossings (h)", xs.empty() ? "none" : xs);
+    }
+    if (e.window) {
+        const std::string wn = num(in_output_unit(o, e.window->first)) + " .. " + c(e.window->second);
+        row(out, "Time inside " + wn, hours(e.window_hours) + " (" + percent(e.window_fraction) + ")");
+        row(out, "Time above " + c(e.window->second), hours(e.above_window_hours) + " (" + percent(e.above_window_fraction) + ")");
+    }
+
+    if (!e.intervals.empty()) {
+        out << "\nDosing intervals (" << e.intervals.size() << "; " << o.name << " in " << u << ", AUC in " << au
+            << ")\n";
+        std::vector<std::string> head = {"start h", "end h", "peak", "at h", "trough", "minimum", "AUC"};
+        if (e.above) head.push_back("above h");
+        if (e.window) head.push_back("window h");
+        const std::size_t wcol = 11;
+        out << "  ";
+        for (const auto& h : head) out << pad_left(h, wcol);
+        out << '\n';
+        auto line = [&](const metrics::Interval& iv) {
+            out << "  " << pad_left(num(iv.start, 5), wcol) << pad_left(num(iv.end, 5), wcol)
+                << pad_left(num(in_output_unit(o, iv.peak.value)), wcol) << pad_left(num(iv.peak.time, 5), wcol)
+                << pad_left(num(in_output_unit(o, iv.trough)), wcol)
+                << pad_left(num(in_output_unit(o, iv.minimum.value)), wcol)
+                << pad_left(num(in_output_unit(o, iv.auc), 5), wcol);
+            if (e.above) out << pad_left(num(iv.above_hours, 4), wcol);
+            if (e.window) out << pad_left(num(iv.window_hours, 4), wcol);
+            out << '\n';
+        };
+        const std::size_t n = e.intervals.size();
+        const std::size_t hn = static_cast<std::size_t>(opt.head), tn = static_cast<std::size_t>(opt.tail);
+        if (opt.all_intervals || n <= hn + tn + 1) {
+            for (const auto& iv : e.intervals) line(iv);
+        } else {
+            for (std::size_t i = 0; i < hn; ++i) line(e.intervals[i]);
+            out << "  " << pad_left("... " + std::to_string(n - hn - tn) + " more (--intervals all)", 40) << '\n';
+            for (std::size_t i = n - tn; i < n; ++i) line(e.intervals[i]);
+        }
+    }
+
+    if (e.steady) {
+        const auto& st = *e.steady;
+        out << "\nSteady state (doses every " << hours(st.interval, 4) << ", solved directly)\n";
+        if (!st.found) {
+            row(out, "Not reached", st.why_not);
+            return;
+        }
+        row(out, "Peak", c(st.peak.value) + ", " + hours(st.peak.time) + " after the dose");
+        row(out, "Trough", c(st.trough));
+        row(out, "Average", c(st.average));
+        row(out, "AUC per interval / per 24 h", num(in_output_unit(o, st.auc), 6) + " / " +
+                                                    num(in_output_unit(o, st.auc24), 6) + " " + au);
+        if (e.above)
+            row(out, "Time above " + c(*e.above), hours(st.above_hours) + " per interval (" +
+                                                      percent(st.above_hours / st.interval) + ")");
+        if (e.window) {
+            row(out, "Time inside the window", hours(st.window_hours) + " per interval (" +
+                                                   percent(st.window_hours / st.interval) + ")");
+            row(out, "Time above the window", hours(st.above_window_hours) + " per interval (" +
+                                                  percent(st.above_window_hours / st.interval) + ")");
+        }
+        row(out, "Accumulation (AUC ss / first dose)", num(st.accumulation, 5));
+        row(out, "Peaks and troughs within 10 %", st.within_10pct ? "from " + hours(*st.within_10pct) : "not within the horizon");
+        row(out, "Peaks and troughs within 5 %", st.within_5pct ? "from " + hours(*st.within_5pct) : "not within the horizon");
+    }
+}
+
+}  // namespace plateau::report

@@ -1,0 +1,69 @@
+#include "report/format.hpp"
+
+#include <cmath>
+#include <cstdio>
+
+namespace plateau::report {
+
+std::string auc_unit(std::string_view u) {
+    if (u.empty()) return "h";
+    const auto slash = u.find('/');
+    if (slash == std::string_view::npos) return std::string(u) + "·h";
+    return std::string(u.substr(0, slash)) + "·h" + std::string(u.substr(slash));
+}
+
+std::string num(double v, int sig) {
+    if (!std::isfinite(v)) return "—";
+    char buf[64];
+    const double a = std::abs(v);
+    if (a != 0.0 && (a >= 1e7 || a < 1e-4)) {
+        std::snprintf(buf, sizeof buf, "%.*e", sig - 1, v);
+        return buf;
+    }
+    // Decimals so that `sig` significant digits show, at least none.
+    int digits = a == 0.0 ? 0 : static_cast<int>(std::floor(std::log10(a))) + 1;
+    int decimals = std::max(0, sig - digits);
+    std::snprintf(buf, sizeof buf, "%.*f", decimals, v);
+    std::string s = buf;
+    if (s == "-0" || s.rfind("-0.", 0) == 0) {
+        bool zero = s.find_first_not_of("-0.") == std::string::npos;
+        if (zero) s.erase(0, 1);
+    }
+    return s;
+}
+
+std::string hours(std::optional<double> h, int decimals) {
+    if (!h) return "—";
+    char buf[64];
+    std::snprintf(buf, sizeof buf, "%.*f h", decimals, *h);
+    return buf;
+}
+
+std::string percent(double fraction) {
+    char buf[64];
+    std::snprintf(buf, sizeof buf, "%.1f %%", 100.0 * fraction);
+    return buf;
+}
+
+double in_output_unit(const model::Output& o, double canonical) { return canonical / o.unit.factor; }
+
+std::size_t display_width(std::string_view s) {
+    std::size_t w = 0;
+    for (unsigned char c : s)
+        if ((c & 0xC0) != 0x80) ++w;
+    return w;
+}
+
+std::string pad_right(std::string_view s, std::size_t width) {
+    std::string out(s);
+    for (std::size_t w = display_width(s); w < width; ++w) out += ' ';
+    return out;
+}
+
+std::string pad_left(std::string_view s, std::size_t width) {
+    std::string out;
+    for (std::size_t w = display_width(s); w < width; ++w) out += ' ';
+    return out + std::string(s);
+}
+
+}  // namespace plateau::report

@@ -1,0 +1,32 @@
+// Number and unit formatting shared by the text, JSON and HTML reports. No computation of figures here.
+#pragma once
+
+#include <optional>
+#include <string>
+#include <string_view>
+
+#include "model/model.hpp"
+
+namespace plateau::report {
+
+// The AUC unit of an output unit: "mg/L" -> "mg·h/L", "ng/mL" -> "ng·h/mL", "mg" -> "mg·h".
+std::string auc_unit(std::string_view unit_text);
+
+// `sig` significant digits, no exponent for ordinary magnitudes ("12.35", "0.001235", "1.235e+07").
+std::string num(double v, int sig = 4);
+
+// Hours with a fixed number of decimals ("31.83 h"); "—" when absent.
+std::string hours(std::optional<double> h, int decimals = 2);
+
+// Percentage with one decimal ("63.4 %").
+std::string percent(double fraction);
+
+// A canonical value of an output converted to its declared unit.
+double in_output_unit(const model::Output& o, double canonical);
+
+// Pads or truncates to a display width (counting UTF-8 code points, so "µ" and "·" take one column).
+std::string pad_right(std::string_view s, std::size_t width);
+std::string pad_left(std::string_view s, std::size_t width);
+std::size_t display_width(std::string_view s);
+
+}  // namespace plateau::report
