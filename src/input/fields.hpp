@@ -15,10 +15,9 @@
 
 namespace plateau::input::detail {
 
-// Longest expression accepted, counted in operator characters (+ - * / ^); keeps expression trees shallow.
-inline constexpr std::size_t kMaxOperators = 2000;
-
 struct Ctx {
+    Ctx(const Document& d, DiagnosticSink& s) : doc(d), sink(s) {}
+
     const Document& doc;
     DiagnosticSink& sink;
 
@@ -29,14 +28,22 @@ struct Ctx {
     void text_error(const Value& v, const TextError& e);
     // An error about a whole value: inside the quotes for a string, else at the value.
     void value_error(const Value& v, std::string message, std::string expected = {});
+    // "missing key '<key>' in <where>", unless the table has an unknown key (most likely the misspelt one,
+    // already reported).
+    void missing(const Value& table, std::string_view key, std::string_view where, std::string expected);
+
+    std::vector<const Value*> tables_with_unknown_keys;
 };
 
 std::string join(const std::vector<std::string>& names);     // "a, b, c"
 std::string one_of(const std::vector<std::string>& names);   // "one of: a, b, c" ("none" when empty)
 std::string fmt(double x);                                    // shortest readable form, 6 significant digits
-std::string describe(units::Dim d);                           // dim_name, with the canonical unit
 
 bool is_identifier(std::string_view s);
+
+// Throws InputError if the sink has anything: diagnostics in other files first (a regimen's model), then
+// those in `path` in the order they appear in it.
+void throw_sorted(const DiagnosticSink& sink, const std::string& path);
 
 // Reports each key of `table` that is not in `allowed`: "unknown key 'k' in <where>", expected: the keys.
 void check_keys(Ctx& c, const Value& table, const std::vector<std::string>& allowed, std::string_view where);
@@ -69,7 +76,10 @@ struct Symbol {
 struct Scope {
     std::vector<Symbol> symbols;          // allowed
     std::vector<std::string> forbidden;   // known names this expression may not use
-    std::string forbidden_reason;         // e.g. "the fraction of a route may use parameters only"
+    std::string forbidden_reason;         // e.g. "route fractions and lags may use parameters only"
+    std::vector<std::string> unknown_dim; // names whose definition had an error: expressions using them are
+                                          // skipped silently (the definition's error is the one to fix)
+    std::vector<std::string> listed;      // names shown as expected for an unknown one (default: symbols)
 };
 
 struct Parsed {

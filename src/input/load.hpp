@@ -17,8 +17,9 @@ inline constexpr long long kMaxFileBytes = 4LL * 1024 * 1024;
 model::Model load_model(const std::string& path);
 
 // Loads and validates a regimen file and the model it names. `model_ref` is looked up, in order: as a path
-// relative to the regimen file's directory (if it ends in .toml or contains '/'), then as an id in each of
-// `model_dirs` (file <dir>/<id>.toml). Throws InputError.
+// relative to the regimen file's directory (if it ends in .toml or contains '/'; such a path is then also
+// tried relative to each of `model_dirs`), else as an id in each of `model_dirs` (file <dir>/<id>.toml).
+// Throws InputError.
 regimen::Regimen load_regimen(const std::string& path, const std::vector<std::string>& model_dirs);
 
 // The project's built-in model directory, then any given with --models (callers append those).

@@ -27,6 +27,9 @@ struct Targets {
     std::string output;                          // empty: the model's first output
     std::optional<double> above;                 // canonical output unit
     std::optional<std::pair<double, double>> window;
+    std::optional<double> above_for;                   // fraction of each interval above `above` at steady
+                                                       // state that meets the target (absent: the whole interval)
+    std::optional<std::pair<double, double>> auc24;    // steady-state AUC over 24 h that meets the target
     SourcePos pos;
 };
 

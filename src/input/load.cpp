@@ -1,0 +1,128 @@
+// Finding model files: the model a regimen names, the model directories, listing them.
+#include "input/load.hpp"
+
+#include <algorithm>
+#include <cstdlib>
+#include <filesystem>
+#include <set>
+
+#include "input/loaders.hpp"
+
+namespace plateau::input {
+
+namespace fs = std::filesystem;
+
+namespace {
+
+bool ends_with(const std::string& s, const std::string& tail) {
+    return s.size() >= tail.size() && s.compare(s.size() - tail.size(), tail.size(), tail) == 0;
+}
+
+bool is_file(const fs::path& p) {
+    std::error_code ec;
+    return fs::is_regular_file(p, ec);
+}
+
+// *.toml files of a directory, sorted by name; none if it does not exist.
+std::vector<fs::path> toml_files(const std::string& dir) {
+    std::vector<fs::path> out;
+    std::error_code ec;
+    if (!fs::is_directory(dir, ec)) return out;
+    for (fs::directory_iterator it(dir, ec), end; !ec && it != end; it.increment(ec))
+        if (it->path().extension() == ".toml" && is_file(it->path())) out.push_back(it->path());
+    std::sort(out.begin(), out.end());
+    return out;
+}
+
+}  // namespace
+
+namespace detail {
+
+bool resolve_model(Ctx& c, const Value& ref, const std::vector<std::string>& model_dirs, model::Model& out) {
+    const std::string& name = ref.str;
+    if (name.empty()) {
+        c.value_error(ref, "the model name is empty", "a model id, or a path to a .toml file relative to this regimen");
+        return false;
+    }
+    const bool path_like = ends_with(name, ".toml") || name.find('/') != std::string::npos;
+    std::vector<fs::path> candidates;
+    if (path_like) {
+        fs::path p(name);
+        if (p.is_absolute()) {
+            candidates.push_back(p);
+        } else {
+            candidates.push_back((fs::path(c.doc.path).parent_path() / p).lexically_normal());
+            for (const auto& d : model_dirs) candidates.push_back((fs::path(d) / p).lexically_normal());
+        }
+    } else {
+        for (const auto& d : model_dirs) candidates.push_back(fs::path(d) / (name + ".toml"));
+    }
+    for (const auto& cand : candidates) {
+        if (!is_file(cand)) continue;
+        try {
+            out = load_model(cand.string());
+            return true;
+        } catch (const InputError& e) {
+            for (const auto& d : e.diagnostics()) c.sink.add(d);
+            c.value_error(ref, "the model '" + name + "' (" + cand.string() + ") has errors", "a model file without errors");
+            return false;
+        }
+    }
+    if (path_like) {
+        std::vector<std::string> looked;
+        for (const auto& cand : candidates) looked.push_back(cand.string());
+        c.value_error(ref, "cannot find the model file '" + name + "'", "a model file at " + join(looked));
+        return false;
+    }
+    std::set<std::string> ids;
+    for (const auto& d : model_dirs)
+        for (const auto& f : toml_files(d)) ids.insert(f.stem().string());
+    const std::string paths = "a path to a .toml file relative to this regimen";
+    c.value_error(ref, "unknown model '" + name + "'",
+                  ids.empty() ? "a model id, or " + paths
+                              : one_of(std::vector<std::string>(ids.begin(), ids.end())) + "; or " + paths);
+    return false;
+}
+
+}  // namespace detail
+
+std::vector<std::string> default_model_dirs() {
+    std::vector<std::string> dirs;
+    if (const char* env = std::getenv("PLATEAU_MODELS")) {
+        std::string s(env);
+        std::size_t start = 0;
+        while (start <= s.size()) {
+            std::size_t colon = s.find(':', start);
+            if (colon == std::string::npos) colon = s.size();
+            if (colon > start) dirs.push_back(s.substr(start, colon - start));
+            start = colon + 1;
+        }
+    }
+    dirs.push_back(std::string(PLATEAU_SOURCE_DIR) + "/models");
+    return dirs;
+}
+
+std::string file_kind(const std::string& path) {
+    Document doc = read_document(path);
+    if (doc.root.find("compartments") != nullptr) return "model";
+    if (doc.root.find("doses") != nullptr || doc.root.find("model") != nullptr) return "regimen";
+    return "";
+}
+
+std::vector<model::Model> list_models(const std::vector<std::string>& model_dirs, std::string* problems) {
+    std::vector<model::Model> out;
+    std::set<std::string> seen;
+    for (const auto& d : model_dirs) {
+        for (const auto& f : toml_files(d)) {
+            try {
+                model::Model m = load_model(f.string());
+                if (seen.insert(m.id).second) out.push_back(std::move(m));
+            } catch (const InputError& e) {
+                if (problems != nullptr) *problems += format_diagnostics(e.diagnostics());
+            }
+        }
+    }
+    return out;
+}
+
+}  // namespace plateau::input

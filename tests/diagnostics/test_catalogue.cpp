@@ -1,0 +1,270 @@
+// The catalogue of bad input files: each file under cases/ has one defect (or, for the *-several files, a few),
+// and the first diagnostic is checked to the letter, with its line and column. Messages and positions are
+// this project's own contract; "common practice, no source" for all of them.
+#include <catch2/catch.hpp>
+
+#include <filesystem>
+#include <string>
+#include <vector>
+
+#include "core/diagnostic.hpp"
+#include "input/load.hpp"
+
+namespace {
+
+namespace fs = std::filesystem;
+using plateau::Diagnostic;
+using plateau::InputError;
+
+const std::string kTests = PLATEAU_TEST_DIR;
+const std::string kCases = kTests + "/diagnostics/cases/";
+const std::vector<std::string> kModelDirs{kTests + "/data/models"};
+
+struct Case {
+    const char* file;
+    bool regimen;
+    int count;              // diagnostics expected
+    const char* first;      // first line of the first diagnostic, path shortened to the file name
+    const char* expected;   // its "expected" text; <tests> stands for the test directory
+};
+
+const Case kCatalogue[] = {
+    {"model-compartment-volume.toml", false, 1,
+     "model-compartment-volume.toml:13:12: error: compartment 'central' must hold an amount, but 'L' is a volume",
+     "a mass unit, like \"mg\""},
+    {"model-deep-parentheses.toml", false, 1,
+     "model-deep-parentheses.toml:16:212: error: expression nested too deeply (more than 200 levels)",
+     "at most 200 levels of parentheses, signs or powers"},
+    {"model-duplicate-name.toml", false, 1,
+     "model-duplicate-name.toml:13:1: error: duplicate name 'gut': already used by the parameter on line 10",
+     "names unique across parameters, compartments and outputs"},
+    {"model-empty.toml", false, 1,
+     "model-empty.toml:1:1: error: empty file: no model in it",
+     "a model file with id, [parameters], [compartments], [rates], [outputs] and [routes]"},
+    {"model-exp-dimensioned.toml", false, 1,
+     "model-exp-dimensioned.toml:17:34: error: exp of a dimensioned value (L) in 'exp(-v)'; its argument must be dimensionless",
+     ""},
+    {"model-fraction-above-one.toml", false, 1,
+     "model-fraction-above-one.toml:23:36: error: the fraction of route 'oral' is 1.2 with the default parameter values",
+     "a fraction from 0 to 1"},
+    {"model-fraction-uses-compartment.toml", false, 1,
+     "model-fraction-uses-compartment.toml:23:38: error: 'gut' cannot be used here: route fractions and lags may use parameters only",
+     "one of: ka, cl, v, f, tlag"},
+    {"model-lag-not-time.toml", false, 1,
+     "model-lag-not-time.toml:23:47: error: the lag of route 'oral' must be a time, but it is a rate constant (1/time)",
+     "a time: a parameter like \"tlag\" or a duration like \"30 min\""},
+    {"model-malformed.toml", false, 1,
+     "model-malformed.toml:6:25: error: invalid TOML: error while parsing inline table: expected key or closing '}', saw '\\n'",
+     ""},
+    {"model-min-in-rate.toml", false, 1,
+     "model-min-in-rate.toml:17:12: error: function 'min' is not allowed: a Taylor series cannot follow a kink or a jump; use a smooth expression",
+     "exp, log or sqrt"},
+    {"model-missing-id.toml", false, 1,
+     "model-missing-id.toml:1:1: error: missing key 'id' in the model file",
+     "id = \"<model name>\""},
+    {"model-name-t.toml", false, 1,
+     "model-name-t.toml:10:1: error: the name 't' is reserved",
+     "a name other than t, exp, log, sqrt"},
+    {"model-negative-lag.toml", false, 1,
+     "model-negative-lag.toml:23:47: error: the lag of route 'oral' is -0.5 h with the default parameter values",
+     "a lag of 0 h or more"},
+    {"model-negative-volume.toml", false, 1,
+     "model-negative-volume.toml:7:19: error: the volume 'v' is negative",
+     "a volume of 0 L or more"},
+    {"model-no-outputs.toml", false, 1,
+     "model-no-outputs.toml:19:1: error: no outputs in [outputs]",
+     "at least one line like conc = { expr = \"central/v\", unit = \"mg/L\" }"},
+    {"model-output-unit-mismatch.toml", false, 1,
+     "model-output-unit-mismatch.toml:20:18: error: output 'conc' is an amount (mass), but its unit 'mg/L' is a concentration (mass/volume)",
+     "an expression that is a concentration (mass/volume), or a unit that matches it"},
+    {"model-rate-cannot-add.toml", false, 1,
+     "model-rate-cannot-add.toml:17:12: error: cannot subtract mg*L/h from mg/h in 'ka*gut - cl*central'",
+     "both sides in the same unit"},
+    {"model-rate-missing.toml", false, 1,
+     "model-rate-missing.toml:13:1: error: no rate for compartment 'central'",
+     "a line in [rates]: central = \"<expression>\" (\"0\" if it does not change)"},
+    {"model-rate-unknown-compartment.toml", false, 1,
+     "model-rate-unknown-compartment.toml:18:1: error: rate for unknown compartment 'periph'",
+     "one of: gut, central"},
+    {"model-rate-wrong-dimension.toml", false, 1,
+     "model-rate-wrong-dimension.toml:16:12: error: the rate of compartment 'gut' is a rate constant (1/time), not an amount per time",
+     "an amount per time (mg/h), like \"-cl/v*central\""},
+    {"model-route-unknown-compartment.toml", false, 1,
+     "model-route-unknown-compartment.toml:23:18: error: route 'oral' goes into unknown compartment 'stomach'",
+     "one of: gut, central"},
+    {"model-several.toml", false, 4,
+     "model-several.toml:6:20: error: unknown unit 'litres' in '40 litres'",
+     "a unit such as mg, L, h, mg/L, L/h, 1/h"},
+    {"model-unknown-identifier.toml", false, 1,
+     "model-unknown-identifier.toml:17:21: error: unknown identifier 'kel'",
+     "one of: ka, cl, v, f, tlag, gut, central, t"},
+    {"model-unknown-key-output.toml", false, 1,
+     "model-unknown-key-output.toml:20:30: error: unknown key 'units' in output 'conc'",
+     "one of: expr, unit, about"},
+    {"model-unknown-key-parameter.toml", false, 1,
+     "model-unknown-key-parameter.toml:5:29: error: unknown key 'abut' in parameter 'ka'",
+     "one of: value, about"},
+    {"model-unknown-key-route.toml", false, 1,
+     "model-unknown-key-route.toml:23:24: error: unknown key 'fractoin' in route 'oral'",
+     "one of: into, fraction, lag"},
+    {"model-unknown-key-top.toml", false, 1,
+     "model-unknown-key-top.toml:3:1: error: unknown key 'sumary' in a model file",
+     "one of: id, summary, parameters, compartments, rates, outputs, routes"},
+    {"model-unknown-unit.toml", false, 1,
+     "model-unknown-unit.toml:7:22: error: unknown unit 'litres' in '40 litres'",
+     "a unit such as mg, L, h, mg/L, L/h, 1/h"},
+    {"model-wrong-type-id.toml", false, 1,
+     "model-wrong-type-id.toml:2:6: error: 'id' must be a string, not an integer",
+     "id = \"<model name>\""},
+    {"regimen-above-wrong-unit.toml", true, 1,
+     "regimen-above-wrong-unit.toml:13:12: error: expected a concentration (mass/volume), got '4 mg' (mass)",
+     "a concentration (mass/volume)"},
+    {"regimen-amount-number.toml", true, 1,
+     "regimen-amount-number.toml:7:10: error: 'amount' must be a string, not an integer",
+     "a string with a unit, like \"250 mg\""},
+    {"regimen-amount-time.toml", true, 1,
+     "regimen-amount-time.toml:7:15: error: expected an amount (mass), got '500 h' (time)",
+     "an amount (mass)"},
+    {"regimen-count-and-until.toml", true, 1,
+     "regimen-count-and-until.toml:10:10: error: 'count' and 'until' cannot both be given",
+     "one of them: count = <number of doses> or until = \"<time>\""},
+    {"regimen-count-float.toml", true, 1,
+     "regimen-count-float.toml:9:9: error: 'count' must be an integer, not a float (1e+09)",
+     "a whole number of doses from 1 to 100000, like 20"},
+    {"regimen-count-huge.toml", true, 1,
+     "regimen-count-huge.toml:9:9: error: 'count' is 1000000000, outside 1 to 100000",
+     "a whole number of doses from 1 to 100000, like 20"},
+    {"regimen-count-zero.toml", true, 1,
+     "regimen-count-zero.toml:9:9: error: 'count' is 0, outside 1 to 100000",
+     "a whole number of doses from 1 to 100000, like 20"},
+    {"regimen-dose-after-horizon.toml", true, 1,
+     "regimen-dose-after-horizon.toml:5:1: error: [[doses]] entry 1 (route 'oral'): dose 8 of 10, at 56 h, is after the horizon ends at 48 h",
+     "a [horizon] until of at least 72 h, or fewer doses"},
+    {"regimen-every-alone.toml", true, 1,
+     "regimen-every-alone.toml:8:10: error: 'every' needs 'count' or 'until' to say when the doses stop",
+     "count = <number of doses> or until = \"<time>\" in this [[doses]] entry"},
+    {"regimen-every-zero.toml", true, 1,
+     "regimen-every-zero.toml:8:10: error: 'every' must be more than 0, got '0 h'",
+     "an interval above 0, like \"8 h\""},
+    {"regimen-horizon-20-years.toml", true, 1,
+     "regimen-horizon-20-years.toml:16:10: error: the horizon '7305 d' (175320 h) is longer than 10 years",
+     "at most 10 years (87660 h)"},
+    {"regimen-inf-at.toml", true, 1,
+     "regimen-inf-at.toml:10:7: error: 'inf' is not a finite number",
+     "a finite number, e.g. '250 mg'"},
+    {"regimen-missing-model-file.toml", true, 1,
+     "regimen-missing-model-file.toml:3:10: error: cannot find the model file '../models/none.toml'",
+     "a model file at <tests>/diagnostics/models/none.toml, <tests>/data/models/none.toml"},
+    {"regimen-nan-amount.toml", true, 1,
+     "regimen-nan-amount.toml:7:11: error: 'nan' is not a finite number",
+     "a finite number, e.g. '250 mg'"},
+    {"regimen-negative-amount.toml", true, 1,
+     "regimen-negative-amount.toml:7:11: error: the amount must be more than 0, got '-500 mg'",
+     "an amount above 0, like \"250 mg\""},
+    {"regimen-no-doses.toml", true, 1,
+     "regimen-no-doses.toml:1:1: error: missing key 'doses' in the regimen file",
+     "at least one [[doses]] section with route and amount, like route = \"iv\", amount = \"500 mg\""},
+    {"regimen-over-and-rate.toml", true, 1,
+     "regimen-over-and-rate.toml:11:9: error: 'over' and 'rate' cannot both be given",
+     "one of them: over = \"<duration>\" or rate = \"<amount per time>\""},
+    {"regimen-override-fraction.toml", true, 1,
+     "regimen-override-fraction.toml:6:5: error: the fraction of route 'oral' is 1.5 with the parameter values of this regimen",
+     "a fraction from 0 to 1"},
+    {"regimen-override-lag.toml", true, 1,
+     "regimen-override-lag.toml:6:9: error: the lag of route 'oral' is -1 h with the parameter values of this regimen",
+     "a lag of 0 h or more"},
+    {"regimen-override-unknown.toml", true, 1,
+     "regimen-override-unknown.toml:6:1: error: unknown parameter 'kel' in model 'simple-oral'",
+     "one of: ka, cl, v, f, tlag"},
+    {"regimen-override-wrong-dimension.toml", true, 1,
+     "regimen-override-wrong-dimension.toml:6:9: error: expected a clearance (volume/time), got '5 L' (volume)",
+     "a clearance (volume/time)"},
+    {"regimen-several.toml", true, 6,
+     "regimen-several.toml:6:9: error: expected a clearance (volume/time), got '5 L' (volume)",
+     "a clearance (volume/time)"},
+    {"regimen-step-too-small.toml", true, 1,
+     "regimen-step-too-small.toml:17:9: error: the output grid would have 1.728e+07 points",
+     "at most 2000000 points: a step of at least 2.4e-05 h"},
+    {"regimen-total-too-many.toml", true, 1,
+     "regimen-total-too-many.toml:17:1: error: too many doses: 120003 in [[doses]] entries 1 to 3",
+     "at most 100000 doses in all [[doses]] entries"},
+    {"regimen-unknown-key-doses.toml", true, 1,
+     "regimen-unknown-key-doses.toml:8:1: error: unknown key 'evry' in [[doses]]",
+     "one of: route, amount, at, every, count, until, over, rate"},
+    {"regimen-unknown-key-horizon.toml", true, 1,
+     "regimen-unknown-key-horizon.toml:16:1: error: unknown key 'unitl' in [horizon]",
+     "one of: until, step"},
+    {"regimen-unknown-key-targets.toml", true, 1,
+     "regimen-unknown-key-targets.toml:13:1: error: unknown key 'abov' in [targets]",
+     "one of: output, above, window"},
+    {"regimen-unknown-key-top.toml", true, 1,
+     "regimen-unknown-key-top.toml:4:1: error: unknown key 'abuot' in a regimen file",
+     "one of: id, model, about, parameters, doses, targets, horizon"},
+    {"regimen-unknown-model.toml", true, 1,
+     "regimen-unknown-model.toml:3:10: error: unknown model 'simple-orl'",
+     "one of: simple-oral, two-comp-iv; or a path to a .toml file relative to this regimen"},
+    {"regimen-unknown-output.toml", true, 1,
+     "regimen-unknown-output.toml:12:11: error: unknown output 'cnc' in model 'simple-oral'",
+     "one of: conc, conc_ng"},
+    {"regimen-unknown-route.toml", true, 1,
+     "regimen-unknown-route.toml:6:10: error: unknown route 'orla'",
+     "one of: oral, iv"},
+    {"regimen-until-too-many.toml", true, 1,
+     "regimen-until-too-many.toml:9:10: error: 'until' gives 144000 doses in this [[doses]] entry",
+     "at most 100000 doses"},
+    {"regimen-window-reversed.toml", true, 1,
+     "regimen-window-reversed.toml:14:10: error: the low end of 'window' ('20 mg/L') is above its high end ('10 mg/L')",
+     "window = [low, high] with 0 <= low <= high, like [\"10 mg/L\", \"20 mg/L\"]"},
+    {"regimen-zero-amount.toml", true, 1,
+     "regimen-zero-amount.toml:7:11: error: the amount must be more than 0, got '0 mg'",
+     "an amount above 0, like \"250 mg\""},
+};
+
+std::string replace_all(std::string s, const std::string& from, const std::string& to) {
+    for (std::size_t p = s.find(from); p != std::string::npos; p = s.find(from, p + to.size())) s.replace(p, from.size(), to);
+    return s;
+}
+
+// Runs the loader on a file and returns its diagnostics (empty if it loaded).
+std::vector<Diagnostic> diagnose(const std::string& path, bool regimen) {
+    try {
+        if (regimen) plateau::input::load_regimen(path, kModelDirs);
+        else plateau::input::load_model(path);
+    } catch (const InputError& e) {
+        return e.diagnostics();
+    }
+    return {};
+}
+
+std::string first_line(const Diagnostic& d, const std::string& dir) {
+    std::string s = plateau::format_diagnostic(d);
+    s = s.substr(0, s.find('\n'));
+    return replace_all(s, dir, "");
+}
+
+}  // namespace
+
+TEST_CASE("input: every bad file in the catalogue gives its exact first diagnostic", "[input][diagnostics]") {
+    // Every file of the cases directory is in the table.
+    std::size_t files = 0;
+    for (const auto& e : fs::directory_iterator(kCases))
+        if (e.path().extension() == ".toml") ++files;
+    CHECK(files == std::size(kCatalogue));
+    CHECK(std::size(kCatalogue) >= 30);
+
+    for (const Case& c : kCatalogue) {
+        INFO("case " << c.file);
+        REQUIRE(fs::exists(kCases + c.file));
+        std::vector<Diagnostic> ds = diagnose(kCases + c.file, c.regimen);
+        REQUIRE(!ds.empty());
+        CHECK(static_cast<int>(ds.size()) == c.count);
+        CHECK(first_line(ds.front(), kCases) == c.first);
+        CHECK(replace_all(ds.front().expected, kTests, "<tests>") == c.expected);
+        // Every diagnostic names its file, line and column.
+        for (const auto& d : ds) {
+            CHECK(d.pos.file == kCases + c.file);
+            CHECK(d.pos.line > 0);
+            CHECK(d.pos.col > 0);
+        }
+    }
+}
