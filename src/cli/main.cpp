@@ -1,1 +1,98 @@
-int main() { return 0; }
+// Command-line parsing only: fills the option structs of cli/commands.hpp and calls the commands.
+#include <CLI/CLI.hpp>
+
+#include <exception>
+#include <iostream>
+#include <string>
+
+#include "cli/commands.hpp"
+
+namespace {
+
+namespace cli = plateau::cli;
+
+const char* const kExitCodes =
+    "Exit codes: 0 ok, 1 bad input (files or options), 2 numerical failure, 3 internal error.";
+
+std::string footer(const std::string& example) { return "\nExample:\n" + example + "\n\n" + kExitCodes; }
+
+CLI::Validator tolerance_validator() {
+    return CLI::Validator([](std::string& s) { return cli::tolerance_problem(s); }, "", "TOL");
+}
+
+CLI::Validator duration_validator() {
+    return CLI::Validator([](std::string& s) { return cli::duration_problem(s); }, "", "DURATION");
+}
+
+void add_model_dirs(CLI::App* app, std::vector<std::string>& dirs) {
+    app->add_option("--models", dirs, "Also look for models in DIR (repeatable)")
+        ->type_name("DIR")
+        ->expected(1)
+        ->allow_extra_args(false)  // one directory per --models, so positionals after it stay positionals
+        ->multi_option_policy(CLI::MultiOptionPolicy::TakeAll);
+}
+
+}  // namespace
+
+int main(int argc, char** argv) {
+    CLI::App app{"plateau: dosing regimens through compartment models, with peaks, troughs and AUC\n"
+                 "taken exactly from the polynomials of high-order Taylor series steps."};
+    app.name("plateau");
+    app.set_version_flag("--version", std::string("plateau ") + cli::kVersion);
+    app.require_subcommand(1);
+    app.get_formatter()->column_width(26);
+    app.footer(footer("  plateau run my-regimen.toml --csv out.csv --step 10min\n"
+                      "  plateau check models/*.toml my-regimen.toml\n"
+                      "  plateau models one-compartment-oral"));
+
+    cli::RunOptions run_opt;
+    CLI::App* run = app.add_subcommand("run", "Simulate a regimen and print a summary (optionally a CSV)");
+    run->add_option("regimen", run_opt.regimen, "Regimen file (.toml)")->required()->type_name("REGIMEN");
+    run->add_option("--tol", run_opt.tol, "Integration tolerance, 1e-15 to 1e-3 (default 1e-10)")
+        ->check(tolerance_validator())
+        ->type_name("TOL");
+    run->add_option("--csv", run_opt.csv, "Write the sampled trajectory to FILE ('-': standard output)")
+        ->type_name("FILE");
+    run->add_option("--times", run_opt.times, "CSV at these times only: 0.5,1,2h,30min (plain numbers: hours)")
+        ->type_name("LIST");
+    run->add_option("--step", run_opt.step, "CSV grid step instead of the regimen's, e.g. 15min")
+        ->check(duration_validator())
+        ->type_name("DURATION");
+    add_model_dirs(run, run_opt.model_dirs);
+    run->footer(footer("  plateau run my-regimen.toml\n"
+                       "  plateau run my-regimen.toml --csv out.csv --step 10min\n"
+                       "  plateau run my-regimen.toml --csv - --times 0.5,1,2h,1d\n"
+                       "With --csv -, the CSV goes to standard output and the summary to standard error."));
+
+    cli::CheckOptions check_opt;
+    CLI::App* check = app.add_subcommand("check", "Validate model and regimen files without simulating");
+    check->add_option("files", check_opt.files, "Model or regimen files")->required()->type_name("FILE");
+    add_model_dirs(check, check_opt.model_dirs);
+    check->footer(footer("  plateau check my-model.toml my-regimen.toml"));
+
+    cli::ModelsOptions models_opt;
+    CLI::App* models = app.add_subcommand("models", "List the available models, or describe one");
+    models->add_option("id", models_opt.id, "Model id to describe")->type_name("ID");
+    add_model_dirs(models, models_opt.model_dirs);
+    models->footer(footer("  plateau models\n  plateau models two-compartment-iv --models ./my-models"));
+
+    try {
+        app.parse(argc, argv);
+    } catch (const CLI::ParseError& e) {
+        if (e.get_exit_code() == 0) return app.exit(e);  // --help, --version
+        std::string where = "plateau";
+        for (const CLI::App* sub : app.get_subcommands()) where += " " + sub->get_name();
+        std::cerr << "error: " << e.what() << "\n(run '" << where << " --help' for usage)\n";
+        return cli::kExitBadInput;
+    }
+
+    try {
+        if (*run) return cli::run_command(run_opt, std::cout, std::cerr);
+        if (*check) return cli::check_command(check_opt, std::cout, std::cerr);
+        if (*models) return cli::models_command(models_opt, std::cout, std::cerr);
+    } catch (const std::exception& e) {
+        std::cerr << "internal error: " << e.what() << '\n';
+        return cli::kExitInternal;
+    }
+    return cli::kExitBadInput;
+}

@@ -146,6 +146,7 @@ Exposure compute(const regimen::Regimen& r, const sim::Simulation& sim, const Re
             const auto& spec = r.doses[static_cast<std::size_t>(period->entry)];
             st.within_10pct = settled_from(tr, s, spec, e.end, st.peak.value, st.trough, 0.10);
             st.within_5pct = settled_from(tr, s, spec, e.end, st.peak.value, st.trough, 0.05);
+            st.period = sol.period.trajectory;
         }
         e.steady = st;
     }

@@ -62,6 +62,7 @@ struct Steady {
     std::optional<double> within_10pct;  // first time from which every peak and trough stays within 10 %
     std::optional<double> within_5pct;
     int newton_iterations = 0;
+    traj::Trajectory period;          // one steady-state interval, t = 0 .. tau (for plots)
 };
 
 struct Exposure {

@@ -196,7 +196,7 @@ const Case kCatalogue[] = {
      "one of: until, step"},
     {"regimen-unknown-key-targets.toml", true, 1,
      "regimen-unknown-key-targets.toml:13:1: error: unknown key 'abov' in [targets]",
-     "one of: output, above, window"},
+     "one of: output, above, above_for, window, auc24"},
     {"regimen-unknown-key-top.toml", true, 1,
      "regimen-unknown-key-top.toml:4:1: error: unknown key 'abuot' in a regimen file",
      "one of: id, model, about, parameters, doses, targets, horizon"},
