@@ -24,6 +24,28 @@ CLI::Validator duration_validator() {
     return CLI::Validator([](std::string& s) { return cli::duration_problem(s); }, "", "DURATION");
 }
 
+void add_targets(CLI::App* app, cli::TargetOverrides& t) {
+    app->add_option("--above", t.above, "Threshold for time above, e.g. 4mg/L (overrides the files)")->type_name("CONC");
+    app->add_option("--window", t.window, "Therapeutic window, e.g. 10mg/L..20mg/L (overrides the files)")
+        ->type_name("LOW..HIGH");
+    app->add_option("--above-for", t.above_for, "Share of each interval above the threshold that meets it, e.g. 50%")
+        ->type_name("SHARE");
+    app->add_option("--auc24", t.auc24, "Steady-state AUC24 range that meets the target, e.g. 400..600")
+        ->type_name("LOW..HIGH");
+}
+
+void add_outputs(CLI::App* app, std::string& json, std::string& report, std::string& plot,
+                 std::vector<std::string>& auc) {
+    app->add_option("--json", json, "Write every figure as JSON to FILE ('-': standard output)")->type_name("FILE");
+    app->add_option("--report", report, "Write a self-contained, printable HTML report")->type_name("FILE.html");
+    app->add_option("--plot", plot, "Write the concentration-time figure (.png, .svg or .pdf)")->type_name("FILE");
+    app->add_option("--auc", auc, "Also report the AUC over this window, e.g. 0h..24h (repeatable)")
+        ->type_name("FROM..TO")
+        ->expected(1)
+        ->allow_extra_args(false)
+        ->multi_option_policy(CLI::MultiOptionPolicy::TakeAll);
+}
+
 void add_model_dirs(CLI::App* app, std::vector<std::string>& dirs) {
     app->add_option("--models", dirs, "Also look for models in DIR (repeatable)")
         ->type_name("DIR")
@@ -41,7 +63,8 @@ int main(int argc, char** argv) {
     app.set_version_flag("--version", std::string("plateau ") + cli::kVersion);
     app.require_subcommand(1);
     app.get_formatter()->column_width(26);
-    app.footer(footer("  plateau run my-regimen.toml --csv out.csv --step 10min\n"
+    app.footer(footer("  plateau compare a.toml b.toml --report report.html\n"
+                      "  plateau run my-regimen.toml --csv out.csv --step 10min\n"
                       "  plateau check models/*.toml my-regimen.toml\n"
                       "  plateau models one-compartment-oral"));
 
@@ -58,11 +81,35 @@ int main(int argc, char** argv) {
     run->add_option("--step", run_opt.step, "CSV grid step instead of the regimen's, e.g. 15min")
         ->check(duration_validator())
         ->type_name("DURATION");
+    std::string intervals;
+    run->add_option("--intervals", intervals, "'all' prints every dosing interval, not the first and last few")
+        ->check(CLI::IsMember({"all", "some"}))
+        ->type_name("all");
+    add_outputs(run, run_opt.json, run_opt.report, run_opt.plot, run_opt.auc);
+    add_targets(run, run_opt.targets);
     add_model_dirs(run, run_opt.model_dirs);
     run->footer(footer("  plateau run my-regimen.toml\n"
                        "  plateau run my-regimen.toml --csv out.csv --step 10min\n"
                        "  plateau run my-regimen.toml --csv - --times 0.5,1,2h,1d\n"
-                       "With --csv -, the CSV goes to standard output and the summary to standard error."));
+                       "  plateau run my-regimen.toml --json - --auc 0h..24h --above 4mg/L\n"
+                       "  plateau run my-regimen.toml --report report.html --plot curve.png\n"
+                       "With --csv - or --json -, that output goes to standard output and the summary to standard\n"
+                       "error."));
+
+    cli::CompareOptions cmp_opt;
+    CLI::App* cmp = app.add_subcommand("compare", "Compare regimens side by side (table, targets, report)");
+    cmp->add_option("regimens", cmp_opt.regimens, "Regimen files (.toml) sharing one output")
+        ->required()
+        ->type_name("REGIMEN...");
+    cmp->add_option("--tol", cmp_opt.tol, "Integration tolerance, 1e-15 to 1e-3 (default 1e-10)")
+        ->check(tolerance_validator())
+        ->type_name("TOL");
+    add_outputs(cmp, cmp_opt.json, cmp_opt.report, cmp_opt.plot, cmp_opt.auc);
+    add_targets(cmp, cmp_opt.targets);
+    add_model_dirs(cmp, cmp_opt.model_dirs);
+    cmp->footer(footer("  plateau compare a.toml b.toml c.toml --report report.html --plot overlay.png\n"
+                       "  plateau compare a.toml b.toml --above 2mg/L --above-for 50% --json -\n"
+                       "Regimens may differ in anything but must share the output and its unit."));
 
     cli::CheckOptions check_opt;
     CLI::App* check = app.add_subcommand("check", "Validate model and regimen files without simulating");
@@ -87,7 +134,9 @@ int main(int argc, char** argv) {
     }
 
     try {
+        run_opt.all_intervals = intervals == "all";
         if (*run) return cli::run_command(run_opt, std::cout, std::cerr);
+        if (*cmp) return cli::compare_command(cmp_opt, std::cout, std::cerr);
         if (*check) return cli::check_command(check_opt, std::cout, std::cerr);
         if (*models) return cli::models_command(models_opt, std::cout, std::cerr);
     } catch (const std::exception& e) {

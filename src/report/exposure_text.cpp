@@ -20,17 +20,18 @@ void write_exposure_text(std::ostream& out, const regimen::Regimen& r, const sim
     const model::Output& o = r.model.outputs[static_cast<std::size_t>(e.output)];
     const std::string u = o.unit_text;
     const std::string au = auc_unit(u);
-    auto c = [&](double v) { return num(in_output_unit(o, v)) + " " + u; };
-    auto at = [](double t) { return " at " + hours(t); };
+    const int dg = opt.digits;
+    auto c = [&](double v) { return num(in_output_unit(o, v), dg) + " " + u; };
+    auto at = [](double t) { return " at " + hours(t, 4); };
     (void)s;
 
     out << "Exposure of '" << o.name << "' (" << u << ") over " << hours(e.start, 1) << " .. " << hours(e.end, 1)
         << '\n';
     row(out, "Peak", c(e.peak.value) + at(e.peak.time));
     row(out, "Minimum after the first dose", c(e.minimum.value) + at(e.minimum.time));
-    row(out, "AUC over the horizon", num(in_output_unit(o, e.auc), 6) + " " + au);
+    row(out, "AUC over the horizon", num(in_output_unit(o, e.auc), dg) + " " + au + " from " + num(e.start, 6) + " to " + num(e.end, 6) + " h");
     for (const auto& w : e.auc_windows)
-        row(out, "AUC " + num(w.from, 4) + " h .. " + num(w.to, 4) + " h", num(in_output_unit(o, w.value), 6) + " " + au);
+        row(out, "AUC " + num(w.from, 4) + " h .. " + num(w.to, 4) + " h", num(in_output_unit(o, w.value), dg) + " " + au);
     if (!e.days.empty()) {
         std::string days;
         for (std::size_t i = 0; i < e.days.size() && i < 3; ++i)
@@ -41,7 +42,7 @@ void write_exposure_text(std::ostream& out, const regimen::Regimen& r, const sim
     }
     if (e.above) {
         row(out, "Time above " + c(*e.above), hours(e.above_hours) + " (" + percent(e.above_fraction) + " of the horizon)");
-        row(out, "First reaches " + c(*e.above), e.first_reached ? "at " + hours(*e.first_reached) : "never");
+        row(out, "First reaches " + c(*e.above), e.first_reached ? "at " + hours(*e.first_reached, 4) : "never");
         std::string xs;
         for (std::size_t i = 0; i < e.crossings.size() && i < 6; ++i)
             xs += (i ? ", " : "") + num(e.crossings[i].time, 5) + (e.crossings[i].up ? " up" : " down");
@@ -95,8 +96,8 @@ void write_exposure_text(std::ostream& out, const regimen::Regimen& r, const sim
         row(out, "Peak", c(st.peak.value) + ", " + hours(st.peak.time) + " after the dose");
         row(out, "Trough", c(st.trough));
         row(out, "Average", c(st.average));
-        row(out, "AUC per interval / per 24 h", num(in_output_unit(o, st.auc), 6) + " / " +
-                                                    num(in_output_unit(o, st.auc24), 6) + " " + au);
+        row(out, "AUC per interval / per 24 h", num(in_output_unit(o, st.auc), dg) + " / " +
+                                                    num(in_output_unit(o, st.auc24), dg) + " " + au);
         if (e.above)
             row(out, "Time above " + c(*e.above), hours(st.above_hours) + " per interval (" +
                                                       percent(st.above_hours / st.interval) + ")");

@@ -13,6 +13,7 @@ struct TextOptions {
     bool all_intervals = false;   // every interval, not the first and last few
     int head = 4;                 // intervals shown at the start ...
     int tail = 3;                 // ... and at the end, when not all
+    int digits = 6;               // significant digits of concentrations and AUCs
 };
 
 // Overall figures, the per-interval table and the steady-state block.

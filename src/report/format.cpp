@@ -25,6 +25,11 @@ std::string num(double v, int sig) {
     int decimals = std::max(0, sig - digits);
     std::snprintf(buf, sizeof buf, "%.*f", decimals, v);
     std::string s = buf;
+    // Trailing zeros carry no information: "10.0000" -> "10", "0.156250" -> "0.15625".
+    if (s.find('.') != std::string::npos) {
+        while (s.back() == '0') s.pop_back();
+        if (s.back() == '.') s.pop_back();
+    }
     if (s == "-0" || s.rfind("-0.", 0) == 0) {
         bool zero = s.find_first_not_of("-0.") == std::string::npos;
         if (zero) s.erase(0, 1);

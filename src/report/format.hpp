@@ -12,7 +12,8 @@ namespace plateau::report {
 // The AUC unit of an output unit: "mg/L" -> "mg·h/L", "ng/mL" -> "ng·h/mL", "mg" -> "mg·h".
 std::string auc_unit(std::string_view unit_text);
 
-// `sig` significant digits, no exponent for ordinary magnitudes ("12.35", "0.001235", "1.235e+07").
+// At most `sig` significant digits, trailing zeros dropped, no exponent for ordinary magnitudes ("12.35",
+// "0.001235", "10", "1.235e+07").
 std::string num(double v, int sig = 4);
 
 // Hours with a fixed number of decimals ("31.83 h"); "—" when absent.

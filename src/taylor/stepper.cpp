@@ -20,7 +20,11 @@ double jorba_zou_step(std::span<const double> coeffs, int n_series, int order) {
             m = std::max(m, std::abs(coeffs[s * stride + static_cast<std::size_t>(j)]));
         return m;
     };
-    const double big = std::max(1.0, norm(0));
+    // Relative control: N = ‖x[0]‖∞ (1 when everything is zero). The mixed form N = max(1, ‖x[0]‖∞) turns
+    // absolute once all amounts fall below 1 mg, and the steps then grow until the polynomial of a fast
+    // series (an emptied gut) no longer decays: the terminal phase would stall at round-off level.
+    const double n0 = norm(0);
+    const double big = n0 > 0.0 ? n0 : 1.0;
     const double inf = std::numeric_limits<double>::infinity();
     auto rho = [&](int j) {
         const double nj = norm(j);

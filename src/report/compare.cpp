@@ -1,0 +1,340 @@
+#include "report/compare.hpp"
+
+#include <algorithm>
+#include <cmath>
+
+#include "report/caution.hpp"
+#include "report/format.hpp"
+
+namespace plateau::report {
+
+std::string letter_for(std::size_t i) {
+    std::string s;
+    std::size_t n = i + 1;
+    while (n > 0) {
+        s.insert(s.begin(), static_cast<char>('A' + (n - 1) % 26));
+        n = (n - 1) / 26;
+    }
+    return s;
+}
+
+Figures figures_of(const Candidate& c) {
+    Figures f;
+    const auto& e = c.exposure;
+    for (const auto& d : c.sim.doses) f.total_dose += d.amount;
+    f.doses = static_cast<long>(c.sim.doses.size());
+    const double horizon = e.end - e.start;
+    f.dose_per_day = horizon > 0 ? f.total_dose / horizon * 24.0 : 0.0;
+    if (auto p = metrics::final_period(c.regimen)) {
+        double per_period = 0.0;
+        for (const auto& d : p->doses) per_period += d.amount;
+        f.dose_per_day = per_period / p->tau * 24.0;
+    }
+    if (!e.intervals.empty()) {
+        f.first_peak = e.intervals.front().peak.value;
+        f.first_peak_time = e.intervals.front().peak.time;
+    }
+    if (!e.days.empty()) f.auc24_day1 = e.days.front().auc;
+    if (e.above) {
+        f.above_day1_hours = e.days.empty() ? 0.0 : e.days.front().above_hours;
+        f.first_reached = e.first_reached;
+    }
+    if (e.steady) {
+        f.repeats = true;
+        const auto& st = *e.steady;
+        if (st.found) {
+            f.ss_peak = st.peak.value;
+            f.ss_trough = st.trough;
+            f.ss_average = st.average;
+            f.auc24_ss = st.auc24;
+            if (e.above) f.above_ss_fraction = st.above_hours / st.interval;
+            if (e.window) {
+                f.window_ss_fraction = st.window_hours / st.interval;
+                f.above_window_ss_fraction = st.above_window_hours / st.interval;
+            }
+            f.within_10pct = st.within_10pct;
+        } else {
+            f.no_steady_state = st.why_not;
+        }
+    }
+    return f;
+}
+
+namespace {
+
+const model::Output& output_of(const Candidate& c) {
+    return c.regimen.model.outputs[static_cast<std::size_t>(c.exposure.output)];
+}
+
+std::string conc(const Candidate& c, std::optional<double> v) {
+    return v ? num(in_output_unit(output_of(c), *v)) : "—";
+}
+
+std::string opt_hours(std::optional<double> h) { return h ? num(*h, 3) : "—"; }
+
+std::string opt_percent(std::optional<double> f) { return f ? percent(*f) : "—"; }
+
+}  // namespace
+
+std::vector<Row> comparison_rows(const std::vector<Candidate>& cs) {
+    std::vector<Row> rows;
+    if (cs.empty()) return rows;
+    const auto& o = output_of(cs.front());
+    const std::string u = o.unit_text, au = auc_unit(o.unit_text);
+    std::vector<Figures> fs;
+    for (const auto& c : cs) fs.push_back(figures_of(c));
+    auto add = [&](std::string label, std::string unit, auto cell) {
+        Row r{std::move(label), std::move(unit), {}};
+        for (std::size_t i = 0; i < cs.size(); ++i) r.cells.push_back(cell(cs[i], fs[i]));
+        rows.push_back(std::move(r));
+    };
+    const bool any_above = std::any_of(cs.begin(), cs.end(), [](const Candidate& c) { return c.exposure.above.has_value(); });
+    const bool any_window = std::any_of(cs.begin(), cs.end(), [](const Candidate& c) { return c.exposure.window.has_value(); });
+    const bool any_steady = std::any_of(fs.begin(), fs.end(), [](const Figures& f) { return f.repeats; });
+
+    add("Dose per day", "mg/day", [](const Candidate&, const Figures& f) { return num(f.dose_per_day); });
+    add("Doses (total amount)", "mg", [](const Candidate&, const Figures& f) {
+        return std::to_string(f.doses) + " (" + num(f.total_dose, 4) + ")";
+    });
+    add("First-dose peak", u, [](const Candidate& c, const Figures& f) { return conc(c, f.first_peak); });
+    if (any_steady) {
+        add("Steady-state peak", u, [](const Candidate& c, const Figures& f) { return conc(c, f.ss_peak); });
+        add("Steady-state trough", u, [](const Candidate& c, const Figures& f) { return conc(c, f.ss_trough); });
+    }
+    add("AUC24, day 1", au, [](const Candidate& c, const Figures& f) {
+        return num(in_output_unit(output_of(c), f.auc24_day1));
+    });
+    if (any_steady)
+        add("AUC24, steady state", au, [](const Candidate& c, const Figures& f) {
+            return f.auc24_ss ? num(in_output_unit(output_of(c), *f.auc24_ss)) : std::string("—");
+        });
+    if (any_above) {
+        add("Time above threshold, day 1", "h", [](const Candidate&, const Figures& f) { return opt_hours(f.above_day1_hours); });
+        if (any_steady)
+            add("Time above threshold, ss", "% of τ", [](const Candidate&, const Figures& f) { return opt_percent(f.above_ss_fraction); });
+        add("First reaches threshold", "h", [](const Candidate&, const Figures& f) {
+            return f.above_day1_hours ? (f.first_reached ? num(*f.first_reached, 3) : std::string("never")) : std::string("—");
+        });
+    }
+    if (any_window && any_steady) {
+        add("Time in window, ss", "% of τ", [](const Candidate&, const Figures& f) { return opt_percent(f.window_ss_fraction); });
+        add("Time above window, ss", "% of τ", [](const Candidate&, const Figures& f) { return opt_percent(f.above_window_ss_fraction); });
+    }
+    if (any_steady)
+        add("Within 10 % of steady state", "h", [](const Candidate&, const Figures& f) {
+            if (!f.repeats) return std::string("—");
+            if (!f.no_steady_state.empty()) return std::string("none");
+            return f.within_10pct ? num(*f.within_10pct, 3) : std::string("later");
+        });
+    return rows;
+}
+
+std::vector<TargetCheck> target_checks(const std::vector<Candidate>& cs) {
+    std::vector<TargetCheck> out;
+    if (cs.empty()) return out;
+    const auto& o = output_of(cs.front());
+    // Targets come from the first regimen that sets them (the command line sets them for all).
+    const regimen::Targets* t = nullptr;
+    for (const auto& c : cs)
+        if (c.regimen.targets.above || c.regimen.targets.window || c.regimen.targets.auc24) {
+            t = &c.regimen.targets;
+            break;
+        }
+    if (!t) return out;
+    auto conc_text = [&](double v) { return num(in_output_unit(o, v)) + " " + o.unit_text; };
+    if (t->above) {
+        const double need = t->above_for.value_or(1.0);
+        TargetCheck tc;
+        tc.what = need >= 1.0 ? "stays above " + conc_text(*t->above) + " through each interval at steady state"
+                              : "above " + conc_text(*t->above) + " for at least " + percent(need) +
+                                    " of each interval at steady state";
+        for (const auto& c : cs) {
+            const auto f = figures_of(c);
+            if (!f.above_ss_fraction) tc.met.push_back(std::nullopt);
+            else tc.met.push_back(*f.above_ss_fraction >= need - 1e-12);
+        }
+        out.push_back(tc);
+    }
+    if (t->window) {
+        TargetCheck tc;
+        tc.what = "steady-state peak and trough inside " + num(in_output_unit(o, t->window->first)) + " .. " +
+                  conc_text(t->window->second);
+        for (const auto& c : cs) {
+            const auto f = figures_of(c);
+            if (!f.ss_peak) tc.met.push_back(std::nullopt);
+            else tc.met.push_back(*f.ss_peak <= t->window->second * (1 + 1e-12) &&
+                                  *f.ss_trough >= t->window->first * (1 - 1e-12));
+        }
+        out.push_back(tc);
+    }
+    if (t->auc24) {
+        TargetCheck tc;
+        tc.what = "steady-state AUC24 within " + num(in_output_unit(o, t->auc24->first)) + " .. " +
+                  num(in_output_unit(o, t->auc24->second)) + " " + auc_unit(o.unit_text);
+        for (const auto& c : cs) {
+            const auto f = figures_of(c);
+            if (!f.auc24_ss) tc.met.push_back(std::nullopt);
+            else tc.met.push_back(*f.auc24_ss >= t->auc24->first * (1 - 1e-12) &&
+                                  *f.auc24_ss <= t->auc24->second * (1 + 1e-12));
+        }
+        out.push_back(tc);
+    }
+    return out;
+}
+
+std::vector<std::string> summary_sentences(const std::vector<Candidate>& cs) {
+    std::vector<std::string> out;
+    if (cs.size() < 2) return out;
+    const auto& o = output_of(cs.front());
+    const Figures a = figures_of(cs.front());
+    const std::string A = cs.front().letter;
+    for (std::size_t i = 1; i < cs.size(); ++i) {
+        const Figures b = figures_of(cs[i]);
+        const std::string B = cs[i].letter;
+        if (a.first_reached && b.first_reached) {
+            const double d = *a.first_reached - *b.first_reached;
+            if (std::abs(d) >= 0.05)
+                out.push_back(B + " reaches the threshold " + num(std::abs(d), 2) + " h " +
+                              (d > 0 ? "sooner" : "later") + " than " + A + ".");
+        } else if (a.first_reached && !b.first_reached && b.above_day1_hours) {
+            out.push_back(B + " never reaches the threshold; " + A + " does at " + num(*a.first_reached, 3) + " h.");
+        } else if (!a.first_reached && b.first_reached && a.above_day1_hours) {
+            out.push_back(B + " reaches the threshold at " + num(*b.first_reached, 3) + " h; " + A + " never does.");
+        }
+        if (a.above_ss_fraction && b.above_ss_fraction && std::abs(*a.above_ss_fraction - *b.above_ss_fraction) >= 0.01)
+            out.push_back(B + " is above the threshold for " + percent(*b.above_ss_fraction) +
+                          " of each interval at steady state, against " + percent(*a.above_ss_fraction) + " for " + A + ".");
+        if (b.above_window_ss_fraction && *b.above_window_ss_fraction >= 0.005)
+            out.push_back(B + " spends " + percent(*b.above_window_ss_fraction) + " of each interval above the window.");
+        if (a.ss_peak && b.ss_peak && a.dose_per_day > 0 && *a.ss_average > 0) {
+            const double dose_ratio = b.dose_per_day / a.dose_per_day;
+            const double exposure_ratio = *b.ss_average / *a.ss_average;
+            if (std::abs(dose_ratio - 1.0) > 0.01 && std::abs(exposure_ratio / dose_ratio - 1.0) > 0.15)
+                out.push_back(B + " gives " + num(dose_ratio, 3) + " times " + A + "'s daily dose but " +
+                              num(exposure_ratio, 3) + " times its steady-state average concentration: " +
+                              "exposure is not proportional to dose.");
+            else if (std::abs(dose_ratio - 1.0) <= 0.01 && std::abs(*b.ss_peak / *a.ss_peak - 1.0) >= 0.05)
+                out.push_back("Same daily dose: " + B + "'s steady-state peak is " + num(*b.ss_peak / *a.ss_peak, 3) +
+                              " times " + A + "'s, its trough " + num(*b.ss_trough / std::max(*a.ss_trough, 1e-300), 3) +
+                              " times.");
+        }
+        if (a.within_10pct && b.within_10pct && std::abs(*a.within_10pct - *b.within_10pct) >= 1.0)
+            out.push_back(B + " comes within 10 % of its steady state " + num(std::abs(*a.within_10pct - *b.within_10pct), 3) +
+                          " h " + (*b.within_10pct < *a.within_10pct ? "earlier" : "later") + " than " + A + ".");
+        if (!b.no_steady_state.empty()) out.push_back(B + " has no steady state: " + b.no_steady_state + ".");
+    }
+    if (!a.no_steady_state.empty()) out.insert(out.begin(), A + " has no steady state: " + a.no_steady_state + ".");
+    (void)o;
+    return out;
+}
+
+namespace {
+
+// Wraps text to `width` columns with a hanging indent.
+void wrap(std::ostream& out, const std::string& text, std::size_t width, const std::string& first,
+          const std::string& rest) {
+    std::string line = first;
+    std::size_t col = display_width(first);
+    std::size_t pos = 0;
+    bool at_start = true;
+    while (pos < text.size()) {
+        std::size_t sp = text.find(' ', pos);
+        if (sp == std::string::npos) sp = text.size();
+        const std::string word = text.substr(pos, sp - pos);
+        const std::size_t w = display_width(word);
+        if (!at_start && col + 1 + w > width) {
+            out << line << '\n';
+            line = rest;
+            col = display_width(rest);
+            at_start = true;
+        }
+        if (!at_start) {
+            line += ' ';
+            ++col;
+        }
+        line += word;
+        col += w;
+        at_start = false;
+        pos = sp + 1;
+    }
+    out << line << '\n';
+}
+
+}  // namespace
+
+void write_compare_text(std::ostream& out, const std::vector<Candidate>& cs, const CompareHeader& h) {
+    const std::size_t width = 100;
+    wrap(out, std::string("CAUTION: ") + kCaution, width, "", "         ");
+    out << '\n';
+    if (cs.empty()) return;
+    const auto& first = cs.front();
+    const auto& o = output_of(first);
+    out << "Comparison of " << cs.size() << " regimen" << (cs.size() == 1 ? "" : "s") << " — model '"
+        << first.regimen.model.id << "', output '" << o.name << "' (" << o.unit_text << ")\n";
+    char tol[32];
+    std::snprintf(tol, sizeof tol, "%.0e", h.tolerance);
+    out << "Tolerance " << tol << (h.date.empty() ? "" : ", " + h.date) << "; figures from the exact step polynomials\n\n";
+    for (const auto& c : cs) {
+        wrap(out, c.regimen.id + (c.regimen.about.empty() ? "" : " — " + c.regimen.about), width,
+             "  " + pad_right(c.letter, 3) + "", "     ");
+    }
+    const auto& t = first.regimen.targets;
+    if (first.exposure.above || first.exposure.window) {
+        std::string tg = "Targets:";
+        if (first.exposure.above) tg += " threshold " + num(in_output_unit(o, *first.exposure.above)) + " " + o.unit_text + ";";
+        if (first.exposure.window)
+            tg += " window " + num(in_output_unit(o, first.exposure.window->first)) + " .. " +
+                  num(in_output_unit(o, first.exposure.window->second)) + " " + o.unit_text + ";";
+        if (t.auc24) tg += " AUC24 " + num(in_output_unit(o, t.auc24->first)) + " .. " + num(in_output_unit(o, t.auc24->second)) + ";";
+        tg.pop_back();
+        out << '\n';
+        wrap(out, tg, width, "", "  ");
+    }
+    out << '\n';
+
+    // The table: label + unit column, then one column per regimen.
+    const std::vector<Row> rows = comparison_rows(cs);
+    std::size_t label_w = 0;
+    for (const auto& r : rows) label_w = std::max(label_w, display_width(r.label + " (" + r.unit + ")"));
+    std::size_t cell_w = 9;
+    for (const auto& r : rows)
+        for (const auto& c : r.cells) cell_w = std::max(cell_w, display_width(c) + 2);
+    // Keep within the width: shrink the label column first, never the numbers.
+    const std::size_t room = width > cell_w * cs.size() + 2 ? width - cell_w * cs.size() - 2 : 20;
+    label_w = std::min(label_w, std::max<std::size_t>(room, 20));
+    out << "  " << pad_right("", label_w);
+    for (const auto& c : cs) out << pad_left(c.letter, cell_w);
+    out << '\n';
+    out << "  " << std::string(label_w + cell_w * cs.size(), '-') << '\n';
+    for (const auto& r : rows) {
+        std::string label = r.label + " (" + r.unit + ")";
+        if (display_width(label) > label_w) label = r.label.substr(0, label_w);
+        out << "  " << pad_right(label, label_w);
+        for (const auto& c : r.cells) out << pad_left(c, cell_w);
+        out << '\n';
+    }
+
+    const auto checks = target_checks(cs);
+    if (!checks.empty()) {
+        out << "\nTargets met\n";
+        for (const auto& tc : checks) {
+            wrap(out, tc.what, width, "  ", "  ");
+            std::string verdicts;
+            for (std::size_t i = 0; i < cs.size(); ++i) {
+                const auto& m = tc.met[i];
+                verdicts += (i ? "; " : "") + cs[i].letter + ": " +
+                            (m ? (*m ? "meets" : "falls short") : "not assessed (no steady state)");
+            }
+            wrap(out, verdicts, width, "    ", "    ");
+        }
+    }
+    const auto sentences = summary_sentences(cs);
+    if (!sentences.empty()) {
+        out << "\nIn plain words\n";
+        for (const auto& s : sentences) wrap(out, s, width, "  - ", "    ");
+    }
+    out << '\n';
+    wrap(out, std::string("CAUTION: ") + kCaution, width, "", "         ");
+}
+
+}  // namespace plateau::report

@@ -1,0 +1,255 @@
+#include "report/html.hpp"
+
+#include <algorithm>
+#include <cmath>
+
+#include "plot/plot.hpp"
+#include "plot/sample.hpp"
+#include "report/caution.hpp"
+#include "report/format.hpp"
+
+namespace plateau::report {
+
+namespace {
+
+std::string esc(std::string_view s) {
+    std::string o;
+    for (char c : s) {
+        switch (c) {
+            case '&': o += "&amp;"; break;
+            case '<': o += "&lt;"; break;
+            case '>': o += "&gt;"; break;
+            case '"': o += "&quot;"; break;
+            default: o += c;
+        }
+    }
+    return o;
+}
+
+const model::Output& output_of(const Candidate& c) {
+    return c.regimen.model.outputs[static_cast<std::size_t>(c.exposure.output)];
+}
+
+std::vector<double> dose_times(const Candidate& c) {
+    std::vector<double> t;
+    for (const auto& d : c.sim.doses) t.push_back(d.time);
+    return t;
+}
+
+const char* kStyle = R"(
+  :root { --ink: #1d232b; --muted: #5b6672; --rule: #cfd6dd; --band: #eef3f7; }
+  body { font: 14px/1.45 "DejaVu Sans", "Helvetica Neue", Arial, sans-serif; color: var(--ink);
+         max-width: 1000px; margin: 24px auto; padding: 0 16px; }
+  h1 { font-size: 22px; margin: 8px 0 4px; } h2 { font-size: 17px; margin: 26px 0 8px; border-bottom: 1px solid var(--rule); }
+  h3 { font-size: 15px; margin: 18px 0 6px; }
+  .caution { border: 2px solid #b3261e; background: #fdf1f0; color: #5c1410; padding: 10px 14px; font-weight: bold;
+             border-radius: 4px; }
+  .meta { color: var(--muted); }
+  table { border-collapse: collapse; margin: 6px 0 12px; font-variant-numeric: tabular-nums; }
+  th, td { border-bottom: 1px solid var(--rule); padding: 3px 9px; text-align: right; vertical-align: top; }
+  th:first-child, td:first-child { text-align: left; }
+  thead th { background: var(--band); }
+  td.meets { color: #11612b; font-weight: bold; } td.short { color: #9b1c12; font-weight: bold; }
+  figure { margin: 8px 0 16px; } figure svg { max-width: 100%; height: auto; }
+  figcaption { color: var(--muted); font-size: 12.5px; }
+  ul.plain li { margin: 2px 0; }
+  .small { font-size: 12.5px; }
+  @page { margin: 14mm; }
+  @media print {
+    body { max-width: none; margin: 0; padding: 0; font-size: 11pt; }
+    h2 { break-after: avoid; } figure, tr, .caution { break-inside: avoid; }
+    thead { display: table-header-group; }
+    section.regimen { break-before: page; }
+    table { width: 100%; }
+  }
+)";
+
+void table_rows(std::ostream& out, const std::vector<Candidate>& cs) {
+    out << "<table><thead><tr><th>Figure</th><th>Unit</th>";
+    for (const auto& c : cs) out << "<th>" << esc(c.letter) << "</th>";
+    out << "</tr></thead><tbody>\n";
+    for (const auto& r : comparison_rows(cs)) {
+        out << "<tr><td>" << esc(r.label) << "</td><td>" << esc(r.unit) << "</td>";
+        for (const auto& cell : r.cells) out << "<td>" << esc(cell) << "</td>";
+        out << "</tr>\n";
+    }
+    out << "</tbody></table>\n";
+}
+
+void figure(std::ostream& out, const plot::Figure& f, const std::string& caption, bool draw) {
+    out << "<figure>";
+    if (draw) out << plot::render_svg(f);
+    else out << "<p class=\"meta\">(figure not drawn: gnuplot is not available)</p>";
+    out << "<figcaption>" << esc(caption) << "</figcaption></figure>\n";
+}
+
+plot::Figure interval_figure(const Candidate& c) {
+    const auto& o = output_of(c);
+    const int s = c.sim.output_series(c.exposure.output);
+    plot::Figure f;
+    f.title = c.letter + ": first interval and steady-state interval";
+    f.xlabel = "time after the dose (h)";
+    f.ylabel = o.name + " (" + o.unit_text + ")";
+    const auto& e = c.exposure;
+    if (!e.intervals.empty()) {
+        const auto& iv = e.intervals.front();
+        plot::Curve cv = plot::sample(c.sim.trajectory, s, iv.start, iv.end, 400, o.unit.factor, {}, "first interval");
+        for (double& t : cv.t) t -= iv.start;
+        f.curves.push_back(std::move(cv));
+    }
+    if (e.steady && e.steady->found && !e.steady->period.empty()) {
+        f.curves.push_back(plot::sample(e.steady->period, s, 0.0, e.steady->interval, 400, o.unit.factor, {},
+                                        "steady state"));
+    }
+    if (e.above) {
+        f.threshold = in_output_unit(o, *e.above);
+        f.threshold_label = "threshold " + num(*f.threshold) + " " + o.unit_text;
+    }
+    if (e.window) f.band = std::make_pair(in_output_unit(o, e.window->first), in_output_unit(o, e.window->second));
+    f.width = 900;
+    f.height = 360;
+    return f;
+}
+
+void inputs(std::ostream& out, const Candidate& c) {
+    const auto& r = c.regimen;
+    const auto& m = r.model;
+    const std::vector<double> values = r.parameter_values();
+    out << "<h3>Inputs</h3>\n<p class=\"small\">Regimen file <code>" << esc(r.path) << "</code>; model <code>"
+        << esc(m.id) << "</code> — " << esc(m.summary) << "</p>\n";
+    out << "<table class=\"small\"><thead><tr><th>Parameter</th><th>Value used</th><th>Model default</th><th>About</th></tr></thead><tbody>\n";
+    for (std::size_t i = 0; i < m.parameters.size(); ++i) {
+        const auto& p = m.parameters[i];
+        const bool changed = values[i] != p.value;
+        out << "<tr><td>" << esc(p.name) << "</td><td>" << (changed ? "<b>" : "") << num(values[i] / p.unit.factor, 6)
+            << " " << esc(p.unit_text) << (changed ? "</b> (set by the regimen)" : "") << "</td><td>"
+            << num(p.value / p.unit.factor, 6) << " " << esc(p.unit_text) << "</td><td>" << esc(p.about) << "</td></tr>\n";
+    }
+    out << "</tbody></table>\n";
+    out << "<table class=\"small\"><thead><tr><th>Dose entry</th><th>Route</th><th>Amount</th><th>First at</th>"
+           "<th>Every</th><th>Count</th><th>Given over</th></tr></thead><tbody>\n";
+    for (std::size_t i = 0; i < r.doses.size(); ++i) {
+        const auto& d = r.doses[i];
+        out << "<tr><td>" << i + 1 << "</td><td>" << esc(d.route) << "</td><td>" << num(d.amount, 6) << " mg</td><td>"
+            << num(d.at, 6) << " h</td><td>" << (d.count > 1 ? num(d.every, 6) + " h" : "—") << "</td><td>" << d.count
+            << "</td><td>" << (d.over > 0 ? num(d.over, 6) + " h" : "bolus") << "</td></tr>\n";
+    }
+    out << "</tbody></table>\n";
+}
+
+void interval_table(std::ostream& out, const Candidate& c) {
+    const auto& o = output_of(c);
+    const auto& e = c.exposure;
+    auto v = [&](double x) { return num(in_output_unit(o, x)); };
+    out << "<h3>Dosing intervals</h3>\n<table class=\"small\"><thead><tr><th>#</th><th>Start (h)</th><th>End (h)</th>"
+        << "<th>Peak (" << esc(o.unit_text) << ")</th><th>at (h)</th><th>Trough</th><th>Minimum</th><th>AUC ("
+        << esc(auc_unit(o.unit_text)) << ")</th>";
+    if (e.above) out << "<th>Above threshold (h)</th>";
+    if (e.window) out << "<th>In window (h)</th>";
+    out << "</tr></thead><tbody>\n";
+    for (std::size_t i = 0; i < e.intervals.size(); ++i) {
+        const auto& iv = e.intervals[i];
+        out << "<tr><td>" << i + 1 << "</td><td>" << num(iv.start, 5) << "</td><td>" << num(iv.end, 5) << "</td><td>"
+            << v(iv.peak.value) << "</td><td>" << num(iv.peak.time, 5) << "</td><td>" << v(iv.trough) << "</td><td>"
+            << v(iv.minimum.value) << "</td><td>" << num(in_output_unit(o, iv.auc), 5) << "</td>";
+        if (e.above) out << "<td>" << num(iv.above_hours, 4) << "</td>";
+        if (e.window) out << "<td>" << num(iv.window_hours, 4) << "</td>";
+        out << "</tr>\n";
+    }
+    out << "</tbody></table>\n";
+}
+
+}  // namespace
+
+plot::Figure overlay_figure(const std::vector<Candidate>& cs) {
+    plot::Figure f;
+    if (cs.empty()) return f;
+    const auto& o = output_of(cs.front());
+    f.title = cs.size() > 1 ? "All regimens" : cs.front().regimen.id;
+    f.ylabel = o.name + " (" + o.unit_text + ")";
+    for (const auto& c : cs) {
+        const int s = c.sim.output_series(c.exposure.output);
+        const int n = static_cast<int>(std::clamp((c.exposure.end - c.exposure.start) * 12.0, 600.0, 4000.0));
+        f.curves.push_back(plot::sample(c.sim.trajectory, s, c.exposure.start, c.exposure.end, n, o.unit.factor,
+                                        dose_times(c), c.letter + ": " + c.regimen.id));
+        f.dose_marks.push_back(dose_times(c));
+    }
+    const auto& e = cs.front().exposure;
+    if (e.above) {
+        f.threshold = in_output_unit(o, *e.above);
+        f.threshold_label = "threshold " + num(*f.threshold) + " " + o.unit_text;
+    }
+    if (e.window) f.band = std::make_pair(in_output_unit(o, e.window->first), in_output_unit(o, e.window->second));
+    return f;
+}
+
+void write_html(std::ostream& out, const std::vector<Candidate>& cs, const HtmlOptions& opt) {
+    const bool draw = opt.figures;
+    const std::string title = cs.size() == 1 ? "plateau report: " + cs.front().regimen.id
+                                             : "plateau comparison of " + std::to_string(cs.size()) + " regimens";
+    out << "<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\">\n<title>" << esc(title)
+        << "</title>\n<style>" << kStyle << "</style></head><body>\n";
+    out << "<p class=\"caution\">CAUTION: " << esc(kCaution) << "</p>\n";
+    out << "<h1>" << esc(title) << "</h1>\n";
+    if (cs.empty()) {
+        out << "</body></html>\n";
+        return;
+    }
+    const auto& first = cs.front();
+    const auto& o = output_of(first);
+    char tol[32];
+    std::snprintf(tol, sizeof tol, "%.0e", opt.tolerance);
+    out << "<p class=\"meta\">Model <b>" << esc(first.regimen.model.id) << "</b> (" << esc(first.regimen.model.summary)
+        << "); output <b>" << esc(o.name) << "</b> in " << esc(o.unit_text) << "; integration tolerance " << tol
+        << (opt.date.empty() ? "" : "; " + esc(opt.date))
+        << ". Every figure comes from the exact step polynomials of a Taylor-series integration, not from a sampled grid.</p>\n";
+    out << "<table><thead><tr><th></th><th>Regimen</th><th>Description</th></tr></thead><tbody>\n";
+    for (const auto& c : cs)
+        out << "<tr><td><b>" << esc(c.letter) << "</b></td><td>" << esc(c.regimen.id) << "</td><td>"
+            << esc(c.regimen.about) << "</td></tr>\n";
+    out << "</tbody></table>\n";
+
+    out << "<h2>Figures side by side</h2>\n";
+    table_rows(out, cs);
+
+    const auto checks = target_checks(cs);
+    if (!checks.empty()) {
+        out << "<h2>Targets</h2>\n<table><thead><tr><th>Target</th>";
+        for (const auto& c : cs) out << "<th>" << esc(c.letter) << "</th>";
+        out << "</tr></thead><tbody>\n";
+        for (const auto& tc : checks) {
+            out << "<tr><td>" << esc(tc.what) << "</td>";
+            for (const auto& m : tc.met) {
+                if (!m) out << "<td>not assessed</td>";
+                else if (*m) out << "<td class=\"meets\">meets</td>";
+                else out << "<td class=\"short\">falls short</td>";
+            }
+            out << "</tr>\n";
+        }
+        out << "</tbody></table>\n";
+    }
+    const auto sentences = summary_sentences(cs);
+    if (!sentences.empty()) {
+        out << "<h2>In plain words</h2>\n<ul class=\"plain\">\n";
+        for (const auto& s : sentences) out << "<li>" << esc(s) << "</li>\n";
+        out << "</ul>\n";
+    }
+
+    out << "<h2>Concentration over time</h2>\n";
+    figure(out, overlay_figure(cs),
+           "All regimens over the horizon. Dashed line: threshold; shaded band: window; ticks at the bottom: doses.",
+           draw);
+
+    for (const auto& c : cs) {
+        out << "<section class=\"regimen\"><h2>" << esc(c.letter) << ": " << esc(c.regimen.id) << "</h2>\n<p>"
+            << esc(c.regimen.about) << "</p>\n";
+        figure(out, interval_figure(c), "The first dosing interval and one interval at steady state, from the dose.", draw);
+        interval_table(out, c);
+        inputs(out, c);
+        out << "</section>\n";
+    }
+    out << "<p class=\"caution\">CAUTION: " << esc(kCaution) << "</p>\n";
+    out << "<p class=\"meta small\">Made by plateau.</p>\n</body></html>\n";
+}
+
+}  // namespace plateau::report
