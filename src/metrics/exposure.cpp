@@ -78,7 +78,13 @@ Exposure compute(const regimen::Regimen& r, const sim::Simulation& sim, const Re
     const double horizon = e.end - e.start;
 
     e.peak = maximum(tr, s, e.start, e.end);
-    e.minimum = minimum(tr, s, e.first_dose, e.end);
+    // The minimum from the first dose's peak on: before it, an infusion or an oral dose starts from zero, which
+    // says nothing about the regimen.
+    {
+        const double first_end = doses.size() > 1 ? std::min(doses[1], e.end) : e.end;
+        const double from = e.first_dose < first_end ? maximum(tr, s, e.first_dose, first_end).time : e.first_dose;
+        e.minimum = minimum(tr, s, from, e.end);
+    }
     e.auc = tr.integral(s, e.start, e.end);
     for (const auto& [a, b] : req.auc_windows) e.auc_windows.push_back({a, b, tr.integral(s, a, b)});
     for (double d0 = e.start; d0 < e.end - 1e-9; d0 += 24.0) {

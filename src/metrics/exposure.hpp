@@ -70,7 +70,7 @@ struct Exposure {
     double start = 0.0, end = 0.0;     // horizon
     double first_dose = 0.0;
     Extreme peak;
-    Extreme minimum;                   // after the first dose
+    Extreme minimum;                   // from the first dose's peak to the end of the horizon
     double auc = 0.0;                  // over the horizon
     std::vector<AucWindow> auc_windows;
     std::vector<Day> days;

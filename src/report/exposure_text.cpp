@@ -22,13 +22,13 @@ void write_exposure_text(std::ostream& out, const regimen::Regimen& r, const sim
     const std::string au = auc_unit(u);
     const int dg = opt.digits;
     auto c = [&](double v) { return num(in_output_unit(o, v), dg) + " " + u; };
-    auto at = [](double t) { return " at " + hours(t, 4); };
+    auto at = [](double t) { return " at " + num(t, 6) + " h"; };
     (void)s;
 
     out << "Exposure of '" << o.name << "' (" << u << ") over " << hours(e.start, 1) << " .. " << hours(e.end, 1)
         << '\n';
     row(out, "Peak", c(e.peak.value) + at(e.peak.time));
-    row(out, "Minimum after the first dose", c(e.minimum.value) + at(e.minimum.time));
+    row(out, "Minimum after the first peak", c(e.minimum.value) + at(e.minimum.time));
     row(out, "AUC over the horizon", num(in_output_unit(o, e.auc), dg) + " " + au + " from " + num(e.start, 6) + " to " + num(e.end, 6) + " h");
     for (const auto& w : e.auc_windows)
         row(out, "AUC " + num(w.from, 4) + " h .. " + num(w.to, 4) + " h", num(in_output_unit(o, w.value), dg) + " " + au);
@@ -42,7 +42,7 @@ void write_exposure_text(std::ostream& out, const regimen::Regimen& r, const sim
     }
     if (e.above) {
         row(out, "Time above " + c(*e.above), hours(e.above_hours) + " (" + percent(e.above_fraction) + " of the horizon)");
-        row(out, "First reaches " + c(*e.above), e.first_reached ? "at " + hours(*e.first_reached, 4) : "never");
+        row(out, "First reaches " + c(*e.above), e.first_reached ? "at " + num(*e.first_reached, 6) + " h" : "never");
         std::string xs;
         for (std::size_t i = 0; i < e.crossings.size() && i < 6; ++i)
             xs += (i ? ", " : "") + num(e.crossings[i].time, 5) + (e.crossings[i].up ? " up" : " down");
@@ -88,12 +88,12 @@ void write_exposure_text(std::ostream& out, const regimen::Regimen& r, const sim
 
     if (e.steady) {
         const auto& st = *e.steady;
-        out << "\nSteady state (doses every " << hours(st.interval, 4) << ", solved directly)\n";
+        out << "\nSteady state (doses every " << num(st.interval, 6) << " h, solved directly)\n";
         if (!st.found) {
             row(out, "Not reached", st.why_not);
             return;
         }
-        row(out, "Peak", c(st.peak.value) + ", " + hours(st.peak.time) + " after the dose");
+        row(out, "Peak", c(st.peak.value) + ", " + num(st.peak.time, 6) + " h after the dose");
         row(out, "Trough", c(st.trough));
         row(out, "Average", c(st.average));
         row(out, "AUC per interval / per 24 h", num(in_output_unit(o, st.auc), dg) + " / " +
@@ -107,7 +107,7 @@ void write_exposure_text(std::ostream& out, const regimen::Regimen& r, const sim
             row(out, "Time above the window", hours(st.above_window_hours) + " per interval (" +
                                                   percent(st.above_window_hours / st.interval) + ")");
         }
-        row(out, "Accumulation (AUC ss / first dose)", num(st.accumulation, 5));
+        row(out, "Accumulation ratio (AUC)", num(st.accumulation, 5) + " (steady-state interval / first dose alone)");
         row(out, "Peaks and troughs within 10 %", st.within_10pct ? "from " + hours(*st.within_10pct) : "not within the horizon");
         row(out, "Peaks and troughs within 5 %", st.within_5pct ? "from " + hours(*st.within_5pct) : "not within the horizon");
     }
