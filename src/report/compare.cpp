@@ -93,7 +93,7 @@ std::vector<Row> comparison_rows(const std::vector<Candidate>& cs) {
     const bool any_steady = std::any_of(fs.begin(), fs.end(), [](const Figures& f) { return f.repeats; });
 
     add("Dose per day", "mg/day", [](const Candidate&, const Figures& f) { return num(f.dose_per_day); });
-    add("Doses (total amount)", "mg", [](const Candidate&, const Figures& f) {
+    add("Doses (total mg)", "", [](const Candidate&, const Figures& f) {
         return std::to_string(f.doses) + " (" + num(f.total_dose, 4) + ")";
     });
     add("First-dose peak", u, [](const Candidate& c, const Figures& f) { return conc(c, f.first_peak); });
@@ -295,7 +295,8 @@ void write_compare_text(std::ostream& out, const std::vector<Candidate>& cs, con
     // The table: label + unit column, then one column per regimen.
     const std::vector<Row> rows = comparison_rows(cs);
     std::size_t label_w = 0;
-    for (const auto& r : rows) label_w = std::max(label_w, display_width(r.label + " (" + r.unit + ")"));
+    auto label_of = [](const Row& r) { return r.unit.empty() ? r.label : r.label + " (" + r.unit + ")"; };
+    for (const auto& r : rows) label_w = std::max(label_w, display_width(label_of(r)));
     std::size_t cell_w = 9;
     for (const auto& r : rows)
         for (const auto& c : r.cells) cell_w = std::max(cell_w, display_width(c) + 2);
@@ -307,7 +308,7 @@ void write_compare_text(std::ostream& out, const std::vector<Candidate>& cs, con
     out << '\n';
     out << "  " << std::string(label_w + cell_w * cs.size(), '-') << '\n';
     for (const auto& r : rows) {
-        std::string label = r.label + " (" + r.unit + ")";
+        std::string label = label_of(r);
         if (display_width(label) > label_w) label = r.label.substr(0, label_w);
         out << "  " << pad_right(label, label_w);
         for (const auto& c : r.cells) out << pad_left(c, cell_w);
