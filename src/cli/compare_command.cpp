@@ -14,6 +14,7 @@ int compare_command(const CompareOptions& opt, std::ostream& out, std::ostream& 
             throw UsageError("at most 26 regimens can be compared at once, got " + std::to_string(opt.regimens.size()));
         if (!(opt.tol >= kMinTol && opt.tol <= kMaxTol))
             throw UsageError("--tol: expected a number from 1e-15 to 1e-3, got " + num(opt.tol, 6));
+        check_outputs(opt.json, opt.report, opt.plot);
         std::vector<std::pair<double, double>> windows;
         for (const auto& w : opt.auc) windows.push_back(parse_time_window(w, "--auc"));
 

@@ -42,16 +42,31 @@ void write_file(const std::string& path, const std::string& text, std::string_vi
 
 }  // namespace
 
-void write_outputs(const std::vector<report::Candidate>& cs, const std::string& json, const std::string& report_path,
-                   const std::string& plot_path, double tol, std::ostream& summary, std::ostream& out, bool single,
-                   const std::string& date) {
+void check_outputs(const std::string& json, const std::string& report_path, const std::string& plot_path) {
     if (!plot_path.empty()) {
-        // Check the format before any work; plot::render_file would say the same, later.
         const std::string ext = std::filesystem::path(plot_path).extension().string();
         if (ext != ".png" && ext != ".svg" && ext != ".pdf")
             throw UsageError("--plot: unsupported format " + cli::quoted(ext.empty() ? plot_path : ext) +
                              ": use a file ending in .png, .svg or .pdf");
     }
+    const std::pair<const std::string*, const char*> files[] = {
+        {&json, "--json"}, {&report_path, "--report"}, {&plot_path, "--plot"}};
+    for (const auto& [path, what] : files) {
+        if (path->empty() || *path == "-") continue;
+        const std::filesystem::path dir = std::filesystem::path(*path).parent_path();
+        std::error_code ec;
+        if (!dir.empty() && !std::filesystem::is_directory(dir, ec))
+            throw UsageError(std::string(what) + ": cannot write " + cli::quoted(*path) + ": the folder " +
+                             cli::quoted(dir.string()) + " does not exist");
+        if (std::filesystem::is_directory(*path, ec))
+            throw UsageError(std::string(what) + ": cannot write " + cli::quoted(*path) + ": it is a folder");
+    }
+}
+
+void write_outputs(const std::vector<report::Candidate>& cs, const std::string& json, const std::string& report_path,
+                   const std::string& plot_path, double tol, std::ostream& summary, std::ostream& out, bool single,
+                   const std::string& date) {
+    check_outputs(json, report_path, plot_path);
     if (!json.empty()) {
         std::ostringstream js;
         report::JsonContext ctx;

@@ -16,6 +16,10 @@ void write_outputs(const std::vector<report::Candidate>& cs, const std::string& 
                    const std::string& plot, double tol, std::ostream& summary, std::ostream& out,
                    bool single = true, const std::string& date = {});
 
+// Checks the asked outputs before anything runs: the plot format, and that each file can be created.
+// Throws UsageError.
+void check_outputs(const std::string& json, const std::string& report, const std::string& plot);
+
 // Today's date as YYYY-MM-DD (UTC).
 std::string today();
 

@@ -85,6 +85,7 @@ int run_command(const RunOptions& opt, std::ostream& out, std::ostream& err) {
         std::vector<double> times;
         if (has_times) times = parse_times(opt.times);
 
+        check_outputs(opt.json, opt.report, opt.plot);
         regimen::Regimen r = load(opt.regimen, opt.model_dirs, opt.targets);
         const double horizon = r.horizon.until;
         if (!opt.csv.empty()) {

@@ -8,6 +8,7 @@
 
 #include "cli/commands.hpp"
 #include "core/diagnostic.hpp"
+#include "plot/plot.hpp"
 #include "regimen/regimen.hpp"
 
 namespace plateau::cli {
@@ -44,6 +45,10 @@ int guarded(std::ostream& err, F&& body) {
         err << format_error(e);
         return kExitBadInput;
     } catch (const UsageError& e) {
+        err << "error: " << e.what() << '\n';
+        return kExitBadInput;
+    } catch (const plot::PlotError& e) {
+        // gnuplot missing or failing: the request could not be met, like a bad option.
         err << "error: " << e.what() << '\n';
         return kExitBadInput;
     } catch (const NumericalError& e) {
