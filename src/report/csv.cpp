@@ -99,7 +99,7 @@ void write_csv(std::ostream& out, const sim::Simulation& s, const model::Model& 
     out << line;
 
     const int n_out = static_cast<int>(m.outputs.size());
-    const int n_cmt = static_cast<int>(m.compartments.size());
+    const int n_compartments = static_cast<int>(m.compartments.size());
     std::string block;
     block.reserve(1 << 16);
     for (double t : times) {
@@ -109,7 +109,7 @@ void write_csv(std::ostream& out, const sim::Simulation& s, const model::Model& 
             append_number(block, units::to_unit(tr.value(s.output_series(i), t),
                                                  m.outputs[static_cast<std::size_t>(i)].unit));
         }
-        for (int i = 0; i < n_cmt; ++i) {
+        for (int i = 0; i < n_compartments; ++i) {
             block += ',';
             append_number(block, units::to_unit(tr.value(i, t), m.compartments[static_cast<std::size_t>(i)].unit));
         }
