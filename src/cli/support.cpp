@@ -57,14 +57,6 @@ std::string with_unit(double value, const std::string& unit_text, int digits) {
 }
 
 
-// "mg/L" -> "mg*h/L", "mg" -> "mg*h", "" -> "h".
-std::string auc_unit(const std::string& unit_text) {
-    if (unit_text.empty()) return "h";
-    const std::size_t slash = unit_text.find('/');
-    if (slash == std::string::npos) return unit_text + "*h";
-    return unit_text.substr(0, slash) + "*h" + unit_text.substr(slash);
-}
-
 std::string hours(double h) {
     std::string s = num(h) + " h";
     if (h >= 48.0) s += " (" + num(h / 24.0) + " d)";

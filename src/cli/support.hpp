@@ -24,7 +24,6 @@ std::string_view trim(std::string_view s);
 std::string quoted(std::string_view s);
 std::string join(const std::vector<std::string>& v, std::string_view sep = ", ");
 std::string with_unit(double value, const std::string& unit_text, int digits = kSummaryDigits);
-std::string auc_unit(const std::string& unit_text);   // "mg/L" -> "mg*h/L"
 std::string hours(double h);                          // "36 h", "72 h (3 d)"
 // The built-in model directories, then the --models ones.
 std::vector<std::string> model_dirs(const std::vector<std::string>& extra);
