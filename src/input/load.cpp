@@ -115,6 +115,8 @@ std::vector<model::Model> list_models(const std::vector<std::string>& model_dirs
     for (const auto& d : model_dirs) {
         for (const auto& f : toml_files(d)) {
             try {
+                // A regimen kept beside its models is not a broken model.
+                if (file_kind(f.string()) == "regimen") continue;
                 model::Model m = load_model(f.string());
                 if (seen.insert(m.id).second) out.push_back(std::move(m));
             } catch (const InputError& e) {

@@ -29,8 +29,8 @@ std::vector<std::string> default_model_dirs();
 // or `model`), or "" if it cannot be told. Throws InputError when the file cannot be read or parsed.
 std::string file_kind(const std::string& path);
 
-// Every model file found in the directories (first occurrence of an id wins), loaded; files that fail to load
-// are reported in `problems` (formatted diagnostics) rather than thrown.
+// Every model file found in the directories (first occurrence of an id wins), loaded; regimen files there are
+// skipped; files that fail to load are reported in `problems` (formatted diagnostics) rather than thrown.
 std::vector<model::Model> list_models(const std::vector<std::string>& model_dirs, std::string* problems = nullptr);
 
 }  // namespace plateau::input
