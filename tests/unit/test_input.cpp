@@ -284,4 +284,10 @@ TEST_CASE("input: the kind of a file and the list of models in a directory", "[i
     models = plateau::input::list_models({kTests + "/diagnostics/cases"}, &problems);
     CHECK(models.empty());
     CHECK(problems.find("model-unknown-unit.toml:7:22: error: unknown unit 'litres' in '40 litres'") != std::string::npos);
+
+    // Regimen files beside models are skipped, not reported as broken models.
+    problems.clear();
+    models = plateau::input::list_models({kRegimens}, &problems);
+    CHECK(models.empty());
+    CHECK(problems.empty());
 }
