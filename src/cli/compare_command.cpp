@@ -1,5 +1,7 @@
 #include "cli/commands.hpp"
 
+#include <sstream>
+
 #include "cli/outputs.hpp"
 #include "cli/support.hpp"
 #include "plot/plot.hpp"
@@ -14,7 +16,7 @@ int compare_command(const CompareOptions& opt, std::ostream& out, std::ostream& 
             throw UsageError("at most 26 regimens can be compared at once, got " + std::to_string(opt.regimens.size()));
         if (!(opt.tol >= kMinTol && opt.tol <= kMaxTol))
             throw UsageError("--tol: expected a number from 1e-15 to 1e-3, got " + num(opt.tol, 6));
-        check_outputs(opt.json, opt.report, opt.plot);
+        check_outputs(opt.json, opt.report, opt.plot, opt.regimens);
         std::vector<std::pair<double, double>> windows;
         for (const auto& w : opt.auc) windows.push_back(parse_time_window(w, "--auc"));
 
@@ -40,6 +42,11 @@ int compare_command(const CompareOptions& opt, std::ostream& out, std::ostream& 
                                  "; set [targets] output to the same output in every file");
         }
 
+        std::vector<std::string> notes = report::unify_targets(loaded);
+        for (std::size_t i = 0; i < opt.regimens.size(); ++i)
+            for (std::size_t j = 0; j < i; ++j)
+                if (opt.regimens[i] == opt.regimens[j])
+                    notes.push_back(report::letter_for(i) + " is the same file as " + report::letter_for(j) + ".");
         sim::Options so;
         so.tol = opt.tol;
         std::vector<report::Candidate> cs;
@@ -52,8 +59,11 @@ int compare_command(const CompareOptions& opt, std::ostream& out, std::ostream& 
         report::CompareHeader h;
         h.tolerance = opt.tol;
         h.date = opt.date.empty() ? today() : opt.date;
+        h.notes = notes;
+        std::ostringstream written;
+        write_outputs(cs, opt.json, opt.report, opt.plot, opt.tol, written, out, false, h.date);
+        h.trailer = written.str();
         report::write_compare_text(text, cs, h);
-        write_outputs(cs, opt.json, opt.report, opt.plot, opt.tol, text, out, false, h.date);
         return kExitOk;
     });
 }

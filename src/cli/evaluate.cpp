@@ -46,6 +46,19 @@ std::pair<double, double> parse_time_window(std::string_view text, std::string_v
 }
 
 void apply_targets(regimen::Regimen& r, const TargetOverrides& t) {
+    if (!t.output.empty()) {
+        if (r.model.output_index(t.output) < 0) {
+            std::vector<std::string> names;
+            for (const auto& o : r.model.outputs) names.push_back(o.name);
+            throw UsageError("--output: model " + quoted(r.model.id) + " has no output " + quoted(t.output) +
+                             "; expected one of: " + join(names));
+        }
+        if (t.output != r.targets.output) {
+            // Thresholds in the file belong to the file's output; they do not carry over to another one.
+            r.targets = regimen::Targets{};
+        }
+        r.targets.output = t.output;
+    }
     const int oi = output_of_target(r);
     if (oi < 0) return;
     const model::Output& o = r.model.outputs[static_cast<std::size_t>(oi)];
@@ -82,6 +95,9 @@ void apply_targets(regimen::Regimen& r, const TargetOverrides& t) {
 }
 
 regimen::Regimen load(const std::string& path, const std::vector<std::string>& dirs, const TargetOverrides& targets) {
+    if (input::file_kind(path) == "model")
+        throw UsageError(quoted(path) + " is a model file; expected a regimen file (one with [[doses]] and "
+                         "model = \"...\"); 'plateau models' and 'plateau check' take model files");
     regimen::Regimen r = input::load_regimen(path, model_dirs(dirs));
     apply_targets(r, targets);
     return r;

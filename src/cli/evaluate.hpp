@@ -17,7 +17,10 @@ struct TargetOverrides {
     std::string window;     // "10mg/L..20mg/L"
     std::string above_for;  // "50%"
     std::string auc24;      // "400..600" (in the output's unit times hours) or with units "400mg*h/L..600mg*h/L"
-    bool any() const { return !above.empty() || !window.empty() || !above_for.empty() || !auc24.empty(); }
+    std::string output;     // the model output the figures are about
+    bool any() const {
+        return !above.empty() || !window.empty() || !above_for.empty() || !auc24.empty() || !output.empty();
+    }
 };
 
 // "0h..24h", "0..24" (hours), "1d..2d": one AUC window. Throws UsageError naming `what`.

@@ -32,6 +32,8 @@ void add_targets(CLI::App* app, cli::TargetOverrides& t) {
         ->type_name("SHARE");
     app->add_option("--auc24", t.auc24, "Steady-state AUC24 range that meets the target, e.g. 400..600")
         ->type_name("LOW..HIGH");
+    app->add_option("--output", t.output, "The model output the figures are about (default: the files' target)")
+        ->type_name("NAME");
 }
 
 void add_outputs(CLI::App* app, std::string& json, std::string& report, std::string& plot,
@@ -83,8 +85,10 @@ int main(int argc, char** argv) {
         ->type_name("DURATION");
     std::string intervals;
     run->add_option("--intervals", intervals, "'all' prints every dosing interval, not the first and last few")
-        ->check(CLI::IsMember({"all", "some"}))
-        ->type_name("all");
+        ->check(CLI::Validator(
+            [](std::string& v) { return v == "all" || v == "some" ? std::string() : "expected 'all' or 'some', got '" + v + "'"; },
+            "", "all"))
+        ->type_name("all|some");
     add_outputs(run, run_opt.json, run_opt.report, run_opt.plot, run_opt.auc);
     add_targets(run, run_opt.targets);
     add_model_dirs(run, run_opt.model_dirs);
@@ -129,9 +133,23 @@ int main(int argc, char** argv) {
         if (e.get_exit_code() == 0) return app.exit(e);  // --help, --version
         std::string where = "plateau";
         for (const CLI::App* sub : app.get_subcommands()) where += " " + sub->get_name();
-        std::cerr << "error: " << e.what() << "\n(run '" << where << " --help' for usage)\n";
+        std::string what = e.what();
+        if (app.get_subcommands().empty()) {
+            // No command was recognised: say which ones there are, in our words.
+            what = argc > 1 && argv[1][0] != '-' ? "unknown command '" + std::string(argv[1]) + "'" : "no command given";
+            what += "; expected one of: run, compare, check, models";
+        }
+        std::cerr << "error: " << what << "\n(run '" << where << " --help' for usage)\n";
         return cli::kExitBadInput;
     }
+    // An option given an empty value ("--plot ''") is a mistake, not a request for the default.
+    for (const CLI::App* sub : app.get_subcommands())
+        for (const CLI::Option* o : sub->get_options())
+            for (const auto& v : o->results())
+                if (o->count() > 0 && v.empty()) {
+                    std::cerr << "error: " << o->get_name() << ": expected a value, got an empty string\n";
+                    return cli::kExitBadInput;
+                }
 
     try {
         run_opt.all_intervals = intervals == "all";

@@ -1,5 +1,6 @@
 #include "cli/outputs.hpp"
 
+#include <cctype>
 #include <ctime>
 #include <filesystem>
 #include <fstream>
@@ -23,9 +24,6 @@ std::string today() {
     return buf;
 }
 
-namespace {
-
-// Writes `text` to `path` through a temporary file, so a failure leaves no half-written file behind.
 void write_file(const std::string& path, const std::string& text, std::string_view what) {
     const std::string tmp = path + ".part";
     {
@@ -40,19 +38,33 @@ void write_file(const std::string& path, const std::string& text, std::string_vi
     if (ec) throw UsageError(std::string(what) + ": cannot write " + cli::quoted(path) + ": " + ec.message());
 }
 
-}  // namespace
-
-void check_outputs(const std::string& json, const std::string& report_path, const std::string& plot_path) {
+void check_outputs(const std::string& json, const std::string& report_path, const std::string& plot_path,
+                   const std::vector<std::string>& inputs, const std::string& csv) {
     if (!plot_path.empty()) {
-        const std::string ext = std::filesystem::path(plot_path).extension().string();
+        std::string ext = std::filesystem::path(plot_path).extension().string();
+        for (char& ch : ext) ch = static_cast<char>(std::tolower(static_cast<unsigned char>(ch)));
+        if (ext.empty())
+            throw UsageError("--plot: " + cli::quoted(plot_path) + " has no extension: use a file ending in .png, .svg or .pdf");
         if (ext != ".png" && ext != ".svg" && ext != ".pdf")
-            throw UsageError("--plot: unsupported format " + cli::quoted(ext.empty() ? plot_path : ext) +
-                             ": use a file ending in .png, .svg or .pdf");
+            throw UsageError("--plot: unsupported format " + cli::quoted(ext) + ": use a file ending in .png, .svg or .pdf");
+        if (!plot::gnuplot_available())
+            throw UsageError("--plot: gnuplot was not found: install gnuplot-nox (apt-get install gnuplot-nox) to draw plots");
     }
     const std::pair<const std::string*, const char*> files[] = {
-        {&json, "--json"}, {&report_path, "--report"}, {&plot_path, "--plot"}};
-    for (const auto& [path, what] : files) {
+        {&json, "--json"}, {&report_path, "--report"}, {&plot_path, "--plot"}, {&csv, "--csv"}};
+    auto same = [](const std::string& a, const std::string& b) {
+        std::error_code e1, e2;
+        return std::filesystem::weakly_canonical(a, e1) == std::filesystem::weakly_canonical(b, e2) && !e1 && !e2;
+    };
+    for (std::size_t i = 0; i < std::size(files); ++i) {
+        const auto& [path, what] = files[i];
         if (path->empty() || *path == "-") continue;
+        for (const auto& in : inputs)
+            if (same(*path, in))
+                throw UsageError(std::string(what) + ": " + cli::quoted(*path) + " is an input file; it would be overwritten");
+        for (std::size_t j = 0; j < i; ++j)
+            if (!files[j].first->empty() && *files[j].first != "-" && same(*path, *files[j].first))
+                throw UsageError(std::string(what) + " and " + files[j].second + " name the same file " + cli::quoted(*path));
         const std::filesystem::path dir = std::filesystem::path(*path).parent_path();
         std::error_code ec;
         if (!dir.empty() && !std::filesystem::is_directory(dir, ec))
@@ -66,7 +78,6 @@ void check_outputs(const std::string& json, const std::string& report_path, cons
 void write_outputs(const std::vector<report::Candidate>& cs, const std::string& json, const std::string& report_path,
                    const std::string& plot_path, double tol, std::ostream& summary, std::ostream& out, bool single,
                    const std::string& date) {
-    check_outputs(json, report_path, plot_path);
     if (!json.empty()) {
         std::ostringstream js;
         report::JsonContext ctx;

@@ -16,9 +16,14 @@ void write_outputs(const std::vector<report::Candidate>& cs, const std::string& 
                    const std::string& plot, double tol, std::ostream& summary, std::ostream& out,
                    bool single = true, const std::string& date = {});
 
-// Checks the asked outputs before anything runs: the plot format, and that each file can be created.
-// Throws UsageError.
-void check_outputs(const std::string& json, const std::string& report, const std::string& plot);
+// Checks the asked outputs before anything runs: the plot format and gnuplot, that each file can be created,
+// and that no output would overwrite an input file or another output. Throws UsageError.
+void check_outputs(const std::string& json, const std::string& report, const std::string& plot,
+                   const std::vector<std::string>& inputs, const std::string& csv = {});
+
+// Writes `text` to `path` through a temporary file in the same folder, so a failure leaves no half-written file.
+// `what` names the option in messages. Throws UsageError.
+void write_file(const std::string& path, const std::string& text, std::string_view what);
 
 // Today's date as YYYY-MM-DD (UTC).
 std::string today();

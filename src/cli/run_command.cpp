@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <cmath>
 #include <fstream>
+#include <sstream>
 
 #include "cli/evaluate.hpp"
 #include "cli/outputs.hpp"
@@ -85,7 +86,7 @@ int run_command(const RunOptions& opt, std::ostream& out, std::ostream& err) {
         std::vector<double> times;
         if (has_times) times = parse_times(opt.times);
 
-        check_outputs(opt.json, opt.report, opt.plot);
+        check_outputs(opt.json, opt.report, opt.plot, {opt.regimen}, opt.csv);
         regimen::Regimen r = load(opt.regimen, opt.model_dirs, opt.targets);
         const double horizon = r.horizon.until;
         if (!opt.csv.empty()) {
@@ -113,30 +114,29 @@ int run_command(const RunOptions& opt, std::ostream& out, std::ostream& err) {
         }()};
         const report::Candidate& c = cs.front();
 
-        std::ofstream file;
-        if (!opt.csv.empty() && opt.csv != "-") {
-            file.open(opt.csv, std::ios::binary | std::ios::trunc);
-            if (!file) throw UsageError("--csv: cannot write " + quoted(opt.csv));
-        }
         // With the CSV or the JSON on standard output, the summary goes to standard error so they can be piped.
-        const bool stdout_taken = opt.csv == "-" || opt.json == "-";
         if (opt.csv == "-" && opt.json == "-") throw UsageError("--csv - and --json - cannot both use standard output");
-        std::ostream& summary = stdout_taken ? err : out;
+        std::ostream& summary = opt.csv == "-" || opt.json == "-" ? err : out;
+        std::ostringstream written;  // "... written to ..." lines, shown before the closing caution
+        if (!opt.csv.empty()) {
+            std::ostringstream csv;
+            report::write_csv(csv, c.sim, c.regimen.model, times);
+            if (opt.csv == "-") {
+                out << csv.str();
+            } else {
+                write_file(opt.csv, csv.str(), "--csv");
+                written << "CSV       " << plural(times.size(), "row") << " written to " << opt.csv << '\n';
+            }
+        }
+        write_outputs(cs, opt.json, opt.report, opt.plot, opt.tol, written, out);
+
         print_run_summary(summary, c.regimen, c.sim, opt);
         summary << '\n';
         report::TextOptions to;
         to.all_intervals = opt.all_intervals;
         report::write_exposure_text(summary, c.regimen, c.sim, c.exposure, to);
+        if (!written.str().empty()) summary << '\n' << written.str();
         summary << '\n' << wrap_text(report::kCaution, 0, 0, kWidth) << '\n';
-        if (!opt.csv.empty()) {
-            std::ostream& csv = opt.csv == "-" ? out : static_cast<std::ostream&>(file);
-            report::write_csv(csv, c.sim, c.regimen.model, times);
-            csv.flush();
-            if (!csv) throw UsageError("--csv: writing " + quoted(opt.csv) + " failed");
-            if (opt.csv != "-")
-                summary << "CSV       " << plural(times.size(), "row") << " written to " << opt.csv << '\n';
-        }
-        write_outputs(cs, opt.json, opt.report, opt.plot, opt.tol, summary, out);
         return kExitOk;
     });
 }

@@ -13,6 +13,27 @@ std::string summarize(const std::vector<Diagnostic>& ds) {
     if (ds.size() > 1) s += " (and " + std::to_string(ds.size() - 1) + " more)";
     return s;
 }
+// The source line as it may be shown on a terminal: control bytes and invalid UTF-8 become '?', so a binary
+// file cannot garble the terminal. Valid multi-byte characters are kept.
+std::string printable(std::string_view line) {
+    std::string out;
+    for (std::size_t i = 0; i < line.size();) {
+        const auto c = static_cast<unsigned char>(line[i]);
+        std::size_t len = c < 0x80 ? 1 : (c >> 5) == 0x6 ? 2 : (c >> 4) == 0xE ? 3 : (c >> 3) == 0x1E ? 4 : 0;
+        bool ok = len > 0 && i + len <= line.size();
+        for (std::size_t k = 1; ok && k < len; ++k) ok = (static_cast<unsigned char>(line[i + k]) & 0xC0) == 0x80;
+        if (!ok) {
+            out += '?';
+            ++i;
+            continue;
+        }
+        if (len == 1 && ((c < 0x20 && c != '\t') || c == 0x7F)) out += '?';
+        else out.append(line.substr(i, len));
+        i += len;
+    }
+    return out;
+}
+
 }  // namespace
 
 InputError::InputError(std::vector<Diagnostic> diagnostics)
@@ -38,10 +59,14 @@ std::string format_diagnostic(const Diagnostic& d, std::string_view source_line)
     }
     out << "error: " << d.message << '\n';
     if (!source_line.empty() && d.pos.col > 0) {
-        out << "  " << source_line << '\n' << "  ";
-        // Keep tabs so the caret lines up under tab-indented text.
-        for (int i = 1; i < d.pos.col && static_cast<std::size_t>(i - 1) < source_line.size(); ++i)
-            out << (source_line[static_cast<std::size_t>(i - 1)] == '\t' ? '\t' : ' ');
+        const std::string shown = printable(source_line);
+        out << "  " << shown << '\n' << "  ";
+        // One column per character (UTF-8 continuation bytes take none); tabs kept so the caret lines up.
+        for (std::size_t i = 0; i + 1 < static_cast<std::size_t>(d.pos.col) && i < shown.size(); ++i) {
+            const auto ch = static_cast<unsigned char>(shown[i]);
+            if ((ch & 0xC0) == 0x80) continue;
+            out << (ch == '\t' ? '\t' : ' ');
+        }
         out << '^';
         for (int i = 1; i < d.length; ++i) out << '~';
         out << '\n';

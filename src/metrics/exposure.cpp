@@ -36,23 +36,19 @@ Interval interval_figures(const traj::Trajectory& tr, int s, double a, double b,
     return iv;
 }
 
-// First dose time of the final series from which every later full interval's peak and trough stay within
-// `frac` of the steady-state values.
-std::optional<double> settled_from(const traj::Trajectory& tr, int s, const regimen::DoseSpec& d, double end,
-                                   double peak_ss, double trough_ss, double frac) {
-    std::optional<double> from;
-    for (long k = 0; k < d.count; ++k) {
-        const double a = d.at + static_cast<double>(k) * d.every;
-        const double b = a + d.every;
-        if (b > end + 1e-9 * std::max(1.0, end)) break;  // only full intervals
-        const double pk = maximum(tr, s, a, b).value;
-        const double tr_ = tr.left_limit(s, b);
-        const bool ok = std::abs(pk - peak_ss) <= frac * std::abs(peak_ss) &&
-                        std::abs(tr_ - trough_ss) <= frac * std::abs(trough_ss);
-        if (!ok) from.reset();
-        else if (!from) from = a;
-    }
-    return from;
+// The time from which the output stays inside [(1 − frac)·lowest, (1 + frac)·peak] of the steady state, up to
+// `end`: the last crossing of either bound (jumps at doses included), or `start` if it never leaves the band;
+// nullopt if it is outside the band at `end`.
+std::optional<double> settled_from(const traj::Trajectory& tr, int s, double start, double end, double low_ss,
+                                   double peak_ss, double frac) {
+    if (!(end > start)) return std::nullopt;
+    const double low = (1.0 - frac) * low_ss, high = (1.0 + frac) * peak_ss;
+    const double last = tr.left_limit(s, end);
+    if (last < low || last > high) return std::nullopt;
+    double t = start;
+    for (double bound : {low, high})
+        for (const auto& c : level(tr, s, bound, start, end).crossings) t = std::max(t, c.time);
+    return t;
 }
 
 }  // namespace
@@ -121,6 +117,17 @@ Exposure compute(const regimen::Regimen& r, const sim::Simulation& sim, const Re
         if (!(a < e.end) || !(b > a)) continue;
         e.intervals.push_back(interval_figures(tr, s, a, std::min(b, e.end), req));
     }
+    // The last interval is cut short when the horizon ends before the next dose would be due, or while an
+    // infusion given in it still runs.
+    if (!e.intervals.empty()) {
+        auto& last = e.intervals.back();
+        double due = last.start;
+        for (const auto& d : sim.doses)
+            if (std::abs(d.time - last.start) <= 1e-9 * std::max(1.0, last.start)) due = std::max(due, d.time + d.duration);
+        for (const auto& spec : r.doses)
+            if (spec.count > 1) due = std::max(due, std::min(last.start + spec.every, spec.at + static_cast<double>(spec.count) * spec.every));
+        last.partial = due > e.end + 1e-9 * std::max(1.0, e.end);
+    }
 
     if (auto period = final_period(r)) {
         Steady st;
@@ -140,6 +147,7 @@ Exposure compute(const regimen::Regimen& r, const sim::Simulation& sim, const Re
             Interval iv = interval_figures(pt, s, 0.0, tau, req);
             st.peak = iv.peak;
             st.trough = iv.trough;
+            st.constant = iv.peak.value - iv.minimum.value <= 1e-9 * std::abs(iv.peak.value);
             st.minimum = iv.minimum;
             st.auc = iv.auc;
             st.average = iv.auc / tau;
@@ -149,9 +157,10 @@ Exposure compute(const regimen::Regimen& r, const sim::Simulation& sim, const Re
             if (req.window) st.above_window_hours = level(pt, s, req.window->second, 0.0, tau).hours_above;
             st.first_interval_auc = sol.first_dose.trajectory.integral(s, 0.0, tau);
             st.accumulation = st.first_interval_auc > 0 ? st.auc / st.first_interval_auc : 0.0;
-            const auto& spec = r.doses[static_cast<std::size_t>(period->entry)];
-            st.within_10pct = settled_from(tr, s, spec, e.end, st.peak.value, st.trough, 0.10);
-            st.within_5pct = settled_from(tr, s, spec, e.end, st.peak.value, st.trough, 0.05);
+            // Judged up to the end of the final series' last full interval (or the horizon, if sooner).
+            const double check_end = std::min(e.end, period->start + tau);
+            st.within_10pct = settled_from(tr, s, e.first_dose, check_end, st.minimum.value, st.peak.value, 0.10);
+            st.within_5pct = settled_from(tr, s, e.first_dose, check_end, st.minimum.value, st.peak.value, 0.05);
             st.period = sol.period.trajectory;
         }
         e.steady = st;

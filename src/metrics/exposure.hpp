@@ -41,6 +41,8 @@ struct Interval {
     double auc = 0.0;
     double above_hours = 0.0;
     double window_hours = 0.0;
+    bool partial = false;       // the horizon ends before this last interval is complete (its "trough" is then
+                                // the value at the horizon end)
 };
 
 struct Steady {
@@ -49,6 +51,7 @@ struct Steady {
     double interval = 0.0;        // tau, h
     double period_start = 0.0;    // time of the regimen's last period start
     Extreme peak;                 // time after the period's first dose
+    bool constant = false;        // the steady-state level does not vary (continuous input)
     double trough = 0.0;
     Extreme minimum;
     double auc = 0.0;             // over one interval
@@ -59,7 +62,8 @@ struct Steady {
     double above_window_hours = 0.0;
     double first_interval_auc = 0.0;  // the first dose of the pattern alone, over one interval
     double accumulation = 0.0;        // auc / first_interval_auc
-    std::optional<double> within_10pct;  // first time from which every peak and trough stays within 10 %
+    std::optional<double> within_10pct;  // time from which the output stays within 10 % of the steady-state
+                                         // range [lowest, peak] (−10 % below the lowest, +10 % above the peak)
     std::optional<double> within_5pct;
     int newton_iterations = 0;
     traj::Trajectory period;          // one steady-state interval, t = 0 .. tau (for plots)

@@ -5,6 +5,7 @@
 
 #include "report/caution.hpp"
 #include "report/format.hpp"
+#include "report/targets.hpp"
 
 namespace plateau::report {
 
@@ -70,7 +71,7 @@ std::string conc(const Candidate& c, std::optional<double> v) {
     return v ? num(in_output_unit(output_of(c), *v)) : "—";
 }
 
-std::string opt_hours(std::optional<double> h) { return h ? num(*h, 3) : "—"; }
+std::string opt_hours(std::optional<double> h) { return h ? num(*h, 4) : "—"; }
 
 std::string opt_percent(std::optional<double> f) { return f ? percent(*f) : "—"; }
 
@@ -92,7 +93,9 @@ std::vector<Row> comparison_rows(const std::vector<Candidate>& cs) {
     const bool any_window = std::any_of(cs.begin(), cs.end(), [](const Candidate& c) { return c.exposure.window.has_value(); });
     const bool any_steady = std::any_of(fs.begin(), fs.end(), [](const Figures& f) { return f.repeats; });
 
-    add("Dose per day", "mg/day", [](const Candidate&, const Figures& f) { return num(f.dose_per_day); });
+    add("Dose per day", "mg/day", [](const Candidate&, const Figures& f) {
+        return f.repeats ? num(f.dose_per_day) : std::string("—");
+    });
     add("Doses (total mg)", "", [](const Candidate&, const Figures& f) {
         return std::to_string(f.doses) + " (" + num(f.total_dose, 4) + ")";
     });
@@ -100,6 +103,7 @@ std::vector<Row> comparison_rows(const std::vector<Candidate>& cs) {
     if (any_steady) {
         add("Steady-state peak", u, [](const Candidate& c, const Figures& f) { return conc(c, f.ss_peak); });
         add("Steady-state trough", u, [](const Candidate& c, const Figures& f) { return conc(c, f.ss_trough); });
+        add("Steady-state average", u, [](const Candidate& c, const Figures& f) { return conc(c, f.ss_average); });
     }
     add("AUC24, day 1", au, [](const Candidate& c, const Figures& f) {
         return num(in_output_unit(output_of(c), f.auc24_day1));
@@ -113,7 +117,7 @@ std::vector<Row> comparison_rows(const std::vector<Candidate>& cs) {
         if (any_steady)
             add("Time above threshold, ss", "% of τ", [](const Candidate&, const Figures& f) { return opt_percent(f.above_ss_fraction); });
         add("First reaches threshold", "h", [](const Candidate&, const Figures& f) {
-            return f.above_day1_hours ? (f.first_reached ? num(*f.first_reached, 3) : std::string("never")) : std::string("—");
+            return f.above_day1_hours ? (f.first_reached ? num(*f.first_reached, 4) : std::string("never")) : std::string("—");
         });
     }
     if (any_window && any_steady) {
@@ -124,7 +128,7 @@ std::vector<Row> comparison_rows(const std::vector<Candidate>& cs) {
         add("Within 10 % of steady state", "h", [](const Candidate&, const Figures& f) {
             if (!f.repeats) return std::string("—");
             if (!f.no_steady_state.empty()) return std::string("none");
-            return f.within_10pct ? num(*f.within_10pct, 3) : std::string("later");
+            return f.within_10pct ? num(*f.within_10pct, 4) : std::string("later");
         });
     return rows;
 }
@@ -132,52 +136,12 @@ std::vector<Row> comparison_rows(const std::vector<Candidate>& cs) {
 std::vector<TargetCheck> target_checks(const std::vector<Candidate>& cs) {
     std::vector<TargetCheck> out;
     if (cs.empty()) return out;
-    const auto& o = output_of(cs.front());
-    // Targets come from the first regimen that sets them (the command line sets them for all).
-    const regimen::Targets* t = nullptr;
-    for (const auto& c : cs)
-        if (c.regimen.targets.above || c.regimen.targets.window || c.regimen.targets.auc24) {
-            t = &c.regimen.targets;
-            break;
-        }
-    if (!t) return out;
-    auto conc_text = [&](double v) { return num(in_output_unit(o, v)) + " " + o.unit_text; };
-    if (t->above) {
-        const double need = t->above_for.value_or(1.0);
-        TargetCheck tc;
-        tc.what = need >= 1.0 ? "stays above " + conc_text(*t->above) + " through each interval at steady state"
-                              : "above " + conc_text(*t->above) + " for at least " + percent(need) +
-                                    " of each interval at steady state";
-        for (const auto& c : cs) {
-            const auto f = figures_of(c);
-            if (!f.above_ss_fraction) tc.met.push_back(std::nullopt);
-            else tc.met.push_back(*f.above_ss_fraction >= need - 1e-12);
-        }
-        out.push_back(tc);
-    }
-    if (t->window) {
-        TargetCheck tc;
-        tc.what = "steady-state peak and trough inside " + num(in_output_unit(o, t->window->first)) + " .. " +
-                  conc_text(t->window->second);
-        for (const auto& c : cs) {
-            const auto f = figures_of(c);
-            if (!f.ss_peak) tc.met.push_back(std::nullopt);
-            else tc.met.push_back(*f.ss_peak <= t->window->second * (1 + 1e-12) &&
-                                  *f.ss_trough >= t->window->first * (1 - 1e-12));
-        }
-        out.push_back(tc);
-    }
-    if (t->auc24) {
-        TargetCheck tc;
-        tc.what = "steady-state AUC24 within " + num(in_output_unit(o, t->auc24->first)) + " .. " +
-                  num(in_output_unit(o, t->auc24->second)) + " " + auc_unit(o.unit_text);
-        for (const auto& c : cs) {
-            const auto f = figures_of(c);
-            if (!f.auc24_ss) tc.met.push_back(std::nullopt);
-            else tc.met.push_back(*f.auc24_ss >= t->auc24->first * (1 - 1e-12) &&
-                                  *f.auc24_ss <= t->auc24->second * (1 + 1e-12));
-        }
-        out.push_back(tc);
+    // Every candidate is judged against the same targets (see unify_targets): the first one's.
+    const auto& t = cs.front().regimen.targets;
+    for (const auto& v : verdicts(t, output_of(cs.front()), cs.front().exposure)) out.push_back({v.what, {}});
+    for (const auto& c : cs) {
+        const auto vs = verdicts(t, output_of(c), c.exposure);
+        for (std::size_t k = 0; k < out.size() && k < vs.size(); ++k) out[k].met.push_back(vs[k].met);
     }
     return out;
 }
@@ -262,6 +226,56 @@ void wrap(std::ostream& out, const std::string& text, std::size_t width, const s
 
 }  // namespace
 
+std::string models_line(const std::vector<Candidate>& cs) {
+    std::vector<std::pair<std::string, std::string>> groups;  // model id -> letters
+    for (const auto& c : cs) {
+        auto it = std::find_if(groups.begin(), groups.end(), [&](const auto& g) { return g.first == c.regimen.model.id; });
+        if (it == groups.end()) groups.push_back({c.regimen.model.id, c.letter});
+        else it->second += ", " + c.letter;
+    }
+    if (groups.size() == 1) return "model '" + groups.front().first + "'";
+    std::string s = "models ";
+    for (std::size_t i = 0; i < groups.size(); ++i)
+        s += (i ? ", '" : "'") + groups[i].first + "' (" + groups[i].second + ")";
+    return s;
+}
+
+namespace {
+bool same_targets(const regimen::Targets& a, const regimen::Targets& b) {
+    return a.above == b.above && a.above_for == b.above_for && a.window == b.window && a.auc24 == b.auc24;
+}
+}  // namespace
+
+std::vector<std::string> unify_targets(std::vector<regimen::Regimen>& rs) {
+    std::vector<std::string> notes;
+    if (rs.empty()) return notes;
+    regimen::Targets common = rs.front().targets;
+    common.above.reset();
+    common.above_for.reset();
+    common.window.reset();
+    common.auc24.reset();
+    for (const auto& r : rs)
+        if (r.targets.above) {
+            common.above = r.targets.above;
+            common.above_for = r.targets.above_for;
+            break;
+        }
+    for (const auto& r : rs)
+        if (r.targets.window) { common.window = r.targets.window; break; }
+    for (const auto& r : rs)
+        if (r.targets.auc24) { common.auc24 = r.targets.auc24; break; }
+    for (std::size_t i = 0; i < rs.size(); ++i) {
+        auto& t = rs[i].targets;
+        if (!same_targets(t, common) && (t.above || t.window || t.auc24))
+            notes.push_back(letter_for(i) + "'s file sets other targets than the ones compared here; every regimen is "
+                            "measured against the same targets (set them with --above, --window, --above-for, --auc24).");
+        common.output = t.output;
+        common.pos = t.pos;
+        t = common;
+    }
+    return notes;
+}
+
 void write_compare_text(std::ostream& out, const std::vector<Candidate>& cs, const CompareHeader& h) {
     const std::size_t width = 100;
     wrap(out, std::string("CAUTION: ") + kCaution, width, "", "         ");
@@ -269,8 +283,8 @@ void write_compare_text(std::ostream& out, const std::vector<Candidate>& cs, con
     if (cs.empty()) return;
     const auto& first = cs.front();
     const auto& o = output_of(first);
-    out << "Comparison of " << cs.size() << " regimen" << (cs.size() == 1 ? "" : "s") << " — model '"
-        << first.regimen.model.id << "', output '" << o.name << "' (" << o.unit_text << ")\n";
+    out << "Comparison of " << cs.size() << " regimen" << (cs.size() == 1 ? "" : "s") << " — " << models_line(cs)
+        << ", output '" << o.name << "' (" << o.unit_text << ")\n";
     char tol[32];
     std::snprintf(tol, sizeof tol, "%.0e", h.tolerance);
     out << "Tolerance " << tol << (h.date.empty() ? "" : ", " + h.date) << "; figures from the exact step polynomials\n\n";
@@ -290,6 +304,7 @@ void write_compare_text(std::ostream& out, const std::vector<Candidate>& cs, con
         out << '\n';
         wrap(out, tg, width, "", "  ");
     }
+    for (const auto& n : h.notes) wrap(out, "Note: " + n, width, "", "      ");
     out << '\n';
 
     // The table: label + unit column, then one column per regimen.
@@ -335,6 +350,7 @@ void write_compare_text(std::ostream& out, const std::vector<Candidate>& cs, con
         for (const auto& s : sentences) wrap(out, s, width, "  - ", "    ");
     }
     out << '\n';
+    if (!h.trailer.empty()) out << h.trailer << '\n';
     wrap(out, std::string("CAUTION: ") + kCaution, width, "", "         ");
 }
 

@@ -56,8 +56,18 @@ std::vector<std::string> summary_sentences(const std::vector<Candidate>& cs);
 
 struct CompareHeader {
     double tolerance = 1e-10;
-    std::string date;        // YYYY-MM-DD
+    std::string date;                 // YYYY-MM-DD
+    std::vector<std::string> notes;   // printed under the targets (e.g. targets taken from another file)
+    std::string trailer;              // printed just before the closing caution (files written)
 };
+
+// "model 'x'" or "models 'x' (A, B), 'y' (C)" when the regimens use different models.
+std::string models_line(const std::vector<Candidate>& cs);
+
+// One set of targets for a comparison: each kind (threshold with its share, window, AUC24) from the first
+// regimen that sets it. Applies it to every candidate's regimen before measuring and returns a note for each
+// regimen whose own file asked for something else.
+std::vector<std::string> unify_targets(std::vector<regimen::Regimen>& rs);
 
 // The whole terminal report: header, caution, table, targets, summary, caution. Fits 100 columns.
 void write_compare_text(std::ostream& out, const std::vector<Candidate>& cs, const CompareHeader& h);

@@ -4,6 +4,7 @@
 #include <vector>
 
 #include "report/format.hpp"
+#include "report/targets.hpp"
 
 namespace plateau::report {
 
@@ -25,8 +26,7 @@ void write_exposure_text(std::ostream& out, const regimen::Regimen& r, const sim
     auto at = [](double t) { return " at " + num(t, 6) + " h"; };
     (void)s;
 
-    out << "Exposure of '" << o.name << "' (" << u << ") over " << hours(e.start, 1) << " .. " << hours(e.end, 1)
-        << '\n';
+    out << "Exposure of '" << o.name << "' (" << u << ") from " << num(e.start, 6) << " to " << num(e.end, 6) << " h\n";
     row(out, "Peak", c(e.peak.value) + at(e.peak.time));
     row(out, "Minimum after the first peak", c(e.minimum.value) + at(e.minimum.time));
     row(out, "AUC over the horizon", num(in_output_unit(o, e.auc), dg) + " " + au + " from " + num(e.start, 6) + " to " + num(e.end, 6) + " h");
@@ -73,7 +73,7 @@ void write_exposure_text(std::ostream& out, const regimen::Regimen& r, const sim
                 << pad_left(num(in_output_unit(o, iv.auc), 5), wcol);
             if (e.above) out << pad_left(num(iv.above_hours, 4), wcol);
             if (e.window) out << pad_left(num(iv.window_hours, 4), wcol);
-            out << '\n';
+            out << (iv.partial ? " *" : "") << '\n';
         };
         const std::size_t n = e.intervals.size();
         const std::size_t hn = static_cast<std::size_t>(opt.head), tn = static_cast<std::size_t>(opt.tail);
@@ -84,17 +84,25 @@ void write_exposure_text(std::ostream& out, const regimen::Regimen& r, const sim
             out << "  " << pad_left("... " + std::to_string(n - hn - tn) + " more (--intervals all)", 40) << '\n';
             for (std::size_t i = n - tn; i < n; ++i) line(e.intervals[i]);
         }
+        if (e.intervals.back().partial)
+            out << "  * cut short by the end of the horizon: its trough is the value at the horizon end\n";
     }
 
     if (e.steady) {
         const auto& st = *e.steady;
         out << "\nSteady state (doses every " << num(st.interval, 6) << " h, solved directly)\n";
-        if (!st.found) {
-            row(out, "Not reached", st.why_not);
-            return;
+        if (!st.found) row(out, "Not reached", st.why_not);
+    }
+    if (e.steady && e.steady->found) {
+        const auto& st = *e.steady;
+        if (st.constant) {
+            row(out, "Level", c(st.peak.value) + ", constant (continuous input)");
+        } else {
+            row(out, "Peak", c(st.peak.value) + ", " + num(st.peak.time, 6) + " h after the dose");
+            row(out, "Trough", c(st.trough) + " (just before the next dose)");
+            if (st.minimum.value < st.trough * (1 - 1e-9))
+                row(out, "Lowest", c(st.minimum.value) + ", " + num(st.minimum.time, 6) + " h after the dose");
         }
-        row(out, "Peak", c(st.peak.value) + ", " + num(st.peak.time, 6) + " h after the dose");
-        row(out, "Trough", c(st.trough));
         row(out, "Average", c(st.average));
         row(out, "AUC per interval / per 24 h", num(in_output_unit(o, st.auc), dg) + " / " +
                                                     num(in_output_unit(o, st.auc24), dg) + " " + au);
@@ -108,8 +116,14 @@ void write_exposure_text(std::ostream& out, const regimen::Regimen& r, const sim
                                                   percent(st.above_window_hours / st.interval) + ")");
         }
         row(out, "Accumulation ratio (AUC)", num(st.accumulation, 5) + " (steady-state interval / first dose alone)");
-        row(out, "Peaks and troughs within 10 %", st.within_10pct ? "from " + hours(*st.within_10pct) : "not within the horizon");
-        row(out, "Peaks and troughs within 5 %", st.within_5pct ? "from " + hours(*st.within_5pct) : "not within the horizon");
+        row(out, "Within 10 % of steady state", st.within_10pct ? "from " + num(*st.within_10pct, 5) + " h" : "not within the horizon");
+        row(out, "Within 5 % of steady state", st.within_5pct ? "from " + num(*st.within_5pct, 5) + " h" : "not within the horizon");
+    }
+    const auto vs = verdicts(r.targets, o, e);
+    if (!vs.empty()) {
+        out << "\nTargets\n";
+        for (const auto& v : vs)
+            row(out, v.met ? (*v.met ? "meets" : "falls short") : "not assessed", v.what);
     }
 }
 

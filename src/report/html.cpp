@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <optional>
 
 #include "plot/plot.hpp"
 #include "plot/sample.hpp"
@@ -30,6 +31,16 @@ const model::Output& output_of(const Candidate& c) {
     return c.regimen.model.outputs[static_cast<std::size_t>(c.exposure.output)];
 }
 
+// Times a drawn curve must pass through exactly: every step boundary (doses, infusion ends, lags) and every
+// interior peak or trough; the evenly spaced points fill in between.
+std::vector<double> key_times(const traj::Trajectory& tr, int s, double a, double b) {
+    std::vector<double> t = tr.boundaries(a, b);
+    const std::vector<double> crit = tr.critical_points(s, a, b);
+    t.insert(t.end(), crit.begin(), crit.end());
+    std::sort(t.begin(), t.end());
+    return t;
+}
+
 std::vector<double> dose_times(const Candidate& c) {
     std::vector<double> t;
     for (const auto& d : c.sim.doses) t.push_back(d.time);
@@ -47,19 +58,20 @@ const char* kStyle = R"(
   .meta { color: var(--muted); }
   table { border-collapse: collapse; margin: 6px 0 12px; font-variant-numeric: tabular-nums; }
   th, td { border-bottom: 1px solid var(--rule); padding: 3px 9px; text-align: right; vertical-align: top; }
-  th:first-child, td:first-child { text-align: left; }
+  th:first-child, td:first-child, td.t, th.t { text-align: left; }
+  td.meets, td.short, td.na { white-space: nowrap; }
   thead th { background: var(--band); }
   td.meets { color: #11612b; font-weight: bold; } td.short { color: #9b1c12; font-weight: bold; }
   figure { margin: 8px 0 16px; } figure svg { max-width: 100%; height: auto; }
   figcaption { color: var(--muted); font-size: 12.5px; }
   ul.plain li { margin: 2px 0; }
   .small { font-size: 12.5px; }
-  @page { margin: 14mm; }
+  @page { size: auto; margin: 14mm; }
   @media print {
     body { max-width: none; margin: 0; padding: 0; font-size: 11pt; }
     h2 { break-after: avoid; } figure, tr, .caution { break-inside: avoid; }
     thead { display: table-header-group; }
-    section.regimen { break-before: page; }
+    section.regimen > h2 { break-before: auto; }
     table { width: 100%; }
   }
 )";
@@ -69,7 +81,7 @@ void table_rows(std::ostream& out, const std::vector<Candidate>& cs) {
     for (const auto& c : cs) out << "<th>" << esc(c.letter) << "</th>";
     out << "</tr></thead><tbody>\n";
     for (const auto& r : comparison_rows(cs)) {
-        out << "<tr><td>" << esc(r.label) << "</td><td>" << esc(r.unit) << "</td>";
+        out << "<tr><td>" << esc(r.label) << "</td><td class=\"t\">" << esc(r.unit) << "</td>";
         for (const auto& cell : r.cells) out << "<td>" << esc(cell) << "</td>";
         out << "</tr>\n";
     }
@@ -91,15 +103,26 @@ plot::Figure interval_figure(const Candidate& c) {
     f.xlabel = "time after the dose (h)";
     f.ylabel = o.name + " (" + o.unit_text + ")";
     const auto& e = c.exposure;
-    if (!e.intervals.empty()) {
-        const auto& iv = e.intervals.front();
-        plot::Curve cv = plot::sample(c.sim.trajectory, s, iv.start, iv.end, 400, o.unit.factor, {}, "first interval");
+    // The first interval of the repeating series (after any loading dose), else the first dosing interval.
+    std::optional<metrics::Interval> first;
+    if (auto p = metrics::final_period(c.regimen)) {
+        const auto& spec = c.regimen.doses[static_cast<std::size_t>(p->entry)];
+        metrics::Interval iv;
+        iv.start = spec.at;
+        iv.end = std::min(spec.at + spec.every, e.end);
+        if (iv.end > iv.start) first = iv;
+    }
+    if (!first && !e.intervals.empty()) first = e.intervals.front();
+    if (first) {
+        const auto& iv = *first;
+        plot::Curve cv = plot::sample(c.sim.trajectory, s, iv.start, iv.end, 400, o.unit.factor,
+                                      key_times(c.sim.trajectory, s, iv.start, iv.end), "first interval");
         for (double& t : cv.t) t -= iv.start;
         f.curves.push_back(std::move(cv));
     }
     if (e.steady && e.steady->found && !e.steady->period.empty()) {
-        f.curves.push_back(plot::sample(e.steady->period, s, 0.0, e.steady->interval, 400, o.unit.factor, {},
-                                        "steady state"));
+        f.curves.push_back(plot::sample(e.steady->period, s, 0.0, e.steady->interval, 400, o.unit.factor,
+                                        key_times(e.steady->period, s, 0.0, e.steady->interval), "steady state"));
     }
     if (e.above) {
         f.threshold = in_output_unit(o, *e.above);
@@ -171,7 +194,8 @@ plot::Figure overlay_figure(const std::vector<Candidate>& cs) {
         const int s = c.sim.output_series(c.exposure.output);
         const int n = static_cast<int>(std::clamp((c.exposure.end - c.exposure.start) * 12.0, 600.0, 4000.0));
         f.curves.push_back(plot::sample(c.sim.trajectory, s, c.exposure.start, c.exposure.end, n, o.unit.factor,
-                                        dose_times(c), c.letter + ": " + c.regimen.id));
+                                        key_times(c.sim.trajectory, s, c.exposure.start, c.exposure.end),
+                                        c.letter + ": " + c.regimen.id));
         f.dose_marks.push_back(dose_times(c));
     }
     const auto& e = cs.front().exposure;
@@ -199,14 +223,16 @@ void write_html(std::ostream& out, const std::vector<Candidate>& cs, const HtmlO
     const auto& o = output_of(first);
     char tol[32];
     std::snprintf(tol, sizeof tol, "%.0e", opt.tolerance);
-    out << "<p class=\"meta\">Model <b>" << esc(first.regimen.model.id) << "</b> (" << esc(first.regimen.model.summary)
-        << "); output <b>" << esc(o.name) << "</b> in " << esc(o.unit_text) << "; integration tolerance " << tol
+    const std::string models = models_line(cs);
+    out << "<p class=\"meta\">" << esc(models.substr(0, 1) == "m" ? "M" + models.substr(1) : models) << " ("
+        << esc(first.regimen.model.summary) << (models.rfind("models", 0) == 0 ? ", ..." : "") << "); output <b>" << esc(o.name) << "</b> in " << esc(o.unit_text) << "; integration tolerance " << tol
         << (opt.date.empty() ? "" : "; " + esc(opt.date))
         << ". Every figure comes from the exact step polynomials of a Taylor-series integration, not from a sampled grid.</p>\n";
-    out << "<table><thead><tr><th></th><th>Regimen</th><th>Description</th></tr></thead><tbody>\n";
+    out << "<table><thead><tr><th>Letter</th><th class=\"t\">Regimen</th><th class=\"t\">Description</th>"
+           "<th class=\"t\">Model</th></tr></thead><tbody>\n";
     for (const auto& c : cs)
-        out << "<tr><td><b>" << esc(c.letter) << "</b></td><td>" << esc(c.regimen.id) << "</td><td>"
-            << esc(c.regimen.about) << "</td></tr>\n";
+        out << "<tr><td><b>" << esc(c.letter) << "</b></td><td class=\"t\">" << esc(c.regimen.id) << "</td><td class=\"t\">"
+            << esc(c.regimen.about) << "</td><td class=\"t\">" << esc(c.regimen.model.id) << "</td></tr>\n";
     out << "</tbody></table>\n";
 
     out << "<h2>Figures side by side</h2>\n";
@@ -218,9 +244,9 @@ void write_html(std::ostream& out, const std::vector<Candidate>& cs, const HtmlO
         for (const auto& c : cs) out << "<th>" << esc(c.letter) << "</th>";
         out << "</tr></thead><tbody>\n";
         for (const auto& tc : checks) {
-            out << "<tr><td>" << esc(tc.what) << "</td>";
+            out << "<tr><td class=\"t\">" << esc(tc.what) << "</td>";
             for (const auto& m : tc.met) {
-                if (!m) out << "<td>not assessed</td>";
+                if (!m) out << "<td class=\"na\">not assessed</td>";
                 else if (*m) out << "<td class=\"meets\">meets</td>";
                 else out << "<td class=\"short\">falls short</td>";
             }
@@ -236,9 +262,13 @@ void write_html(std::ostream& out, const std::vector<Candidate>& cs, const HtmlO
     }
 
     out << "<h2>Concentration over time</h2>\n";
-    figure(out, overlay_figure(cs),
-           "All regimens over the horizon. Dashed line: threshold; shaded band: window; ticks at the bottom: doses.",
-           draw);
+    {
+        std::string caption = "All regimens over the horizon.";
+        if (first.exposure.above) caption += " Dashed line: threshold.";
+        if (first.exposure.window) caption += " Shaded band: window.";
+        caption += " Ticks below the axis: doses, one row per regimen in the order of the key.";
+        figure(out, overlay_figure(cs), caption, draw);
+    }
 
     for (const auto& c : cs) {
         out << "<section class=\"regimen\"><h2>" << esc(c.letter) << ": " << esc(c.regimen.id) << "</h2>\n<p>"

@@ -6,6 +6,7 @@
 
 #include "report/caution.hpp"
 #include "report/format.hpp"
+#include "report/targets.hpp"
 
 namespace plateau::report {
 
@@ -102,6 +103,20 @@ void write_exposure_json(std::ostream& out, const regimen::Regimen& r, const sim
     w.str("about", r.about);
     w.str("file", r.path);
     w.str("model", r.model.id);
+    w.str("model_file", r.model.path);
+    w.key("parameters"); w.open('{');
+    {
+        const std::vector<double> values = r.parameter_values();
+        for (std::size_t i = 0; i < r.model.parameters.size(); ++i) {
+            const auto& p = r.model.parameters[i];
+            w.key(p.name); w.open('{');
+            w.num("value", values[i] / p.unit.factor);
+            w.str("unit", p.unit_text);
+            w.field("overridden", values[i] != p.value ? "true" : "false");
+            w.close('}');
+        }
+    }
+    w.close('}');
     w.str("output", o.name);
     w.str("unit", o.unit_text);
     w.str("auc_unit", auc_unit(o.unit_text));
@@ -159,6 +174,7 @@ void write_exposure_json(std::ostream& out, const regimen::Regimen& r, const sim
         w.num("auc", c(iv.auc));
         w.num("above_hours", iv.above_hours);
         if (e.window) w.num("window_hours", iv.window_hours);
+        w.field("partial", iv.partial ? "true" : "false");
         w.close('}');
     }
     w.close(']');
@@ -170,6 +186,7 @@ void write_exposure_json(std::ostream& out, const regimen::Regimen& r, const sim
         w.num("interval", st.interval);
         if (st.found) {
             w.num("peak", c(st.peak.value)); w.num("peak_time", st.peak.time);
+            w.field("constant", st.constant ? "true" : "false");
             w.num("trough", c(st.trough));
             w.num("minimum", c(st.minimum.value)); w.num("minimum_time", st.minimum.time);
             w.num("average", c(st.average));
@@ -187,6 +204,15 @@ void write_exposure_json(std::ostream& out, const regimen::Regimen& r, const sim
         }
         w.close('}');
     }
+    w.key("targets"); w.open('[');
+    for (const auto& v : verdicts(r.targets, o, e)) {
+        w.open('{');
+        w.str("kind", v.kind);
+        w.str("what", v.what);
+        w.field("met", v.met ? (*v.met ? "true" : "false") : "null");
+        w.close('}');
+    }
+    w.close(']');
     w.str("caution", kCaution);
     w.close('}');
 }

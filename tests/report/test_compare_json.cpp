@@ -1,0 +1,160 @@
+// The comparison's figures against `plateau run --json` for each regimen, and the comparison table's cells
+// against the JSON values rounded the way the table shows them.
+#include <catch2/catch.hpp>
+
+#include <cmath>
+#include <map>
+#include <string>
+#include <vector>
+
+#include "json_mini.hpp"
+#include "report/caution.hpp"
+#include "report/format.hpp"
+#include "report_support.hpp"
+
+using namespace plateau;
+using namespace plateau::reporttest;
+namespace json = plateau::jsonmini;
+
+namespace {
+
+json::Value run_json(const std::string& regimen, const TempDir& dir, const std::string& name) {
+    cli::RunOptions o;
+    o.regimen = regimen;
+    o.json = dir.file(name);
+    const Result r = run(o);
+    INFO(r.err);
+    REQUIRE(r.code == cli::kExitOk);
+    return json::parse(slurp(o.json));
+}
+
+json::Value compare_json(const std::vector<std::string>& regimens, const TempDir& dir) {
+    cli::CompareOptions o = compare_options(regimens);
+    o.json = dir.file("compare.json");
+    const Result r = compare(o);
+    INFO(r.err);
+    REQUIRE(r.code == cli::kExitOk);
+    CHECK(r.err.empty());
+    CHECK(r.out.find("JSON      written to " + o.json) != std::string::npos);
+    return json::parse(slurp(o.json));
+}
+
+}  // namespace
+
+TEST_CASE("report: the compare JSON holds, per regimen, exactly the figures of plateau run --json", "[report][json]") {
+    TempDir dir("compare-vs-run");
+    const auto regimens = demo_regimens();
+    const json::Value all = compare_json(regimens, dir);
+    REQUIRE(json::at(all, "regimens").items.size() == regimens.size());
+    CHECK(json::at(all, "caution").s == report::kCaution);
+
+    for (std::size_t i = 0; i < regimens.size(); ++i) {
+        INFO("regimen " << regimens[i]);
+        const json::Value one = run_json(regimens[i], dir, "run-" + std::to_string(i) + ".json");
+        const json::Value& mine = json::at(all, "regimens/" + std::to_string(i));
+
+        // The figures a reader compares, one by one, so that a failure names the figure (common practice, no
+        // source: the same regimen through the same engine gives the same numbers, to the last printed digit).
+        for (const char* path : {"intervals/0/peak", "intervals/0/peak_time", "steady_state/peak",
+                                 "steady_state/trough", "steady_state/average", "steady_state/auc",
+                                 "steady_state/auc24", "steady_state/above_fraction", "steady_state/above_hours",
+                                 "steady_state/window_hours", "steady_state/above_high_hours",
+                                 "steady_state/within_10pct", "steady_state/accumulation", "days/0/auc",
+                                 "days/0/above_hours", "above/first_reached", "above/fraction", "window/fraction",
+                                 "auc/value", "peak/value", "doses/count", "doses/total_mg"}) {
+            INFO(path);
+            CHECK(json::number(mine, path) == json::number(one, path));
+        }
+        // And everything else too: every key, every value, in the same order.
+        std::map<std::string, std::string> a, b;
+        json::leaves(mine, "", a);
+        json::leaves(one, "", b);
+        CHECK(a.size() == b.size());
+        for (const auto& [path, value] : b) {
+            INFO(path);
+            REQUIRE(a.count(path) == 1);
+            CHECK(a[path] == value);
+        }
+    }
+}
+
+TEST_CASE("report: comparison table cells are the JSON figures rounded as displayed", "[report][json]") {
+    TempDir dir("rows-vs-json");
+    const auto regimens = demo_regimens();
+    const json::Value all = compare_json(regimens, dir);
+    const auto cs = candidates(regimens);
+    const auto rows = report::comparison_rows(cs);
+    REQUIRE(rows.size() == 14);  // every row applies: all four repeat, have a threshold and a window
+
+    // What each row shows, taken from one regimen's JSON object, formatted as the table formats it.
+    using Cell = std::string (*)(const json::Value&);
+    const std::map<std::string, Cell> expected{
+        {"Doses (total mg)",
+         [](const json::Value& j) {
+             return std::to_string(static_cast<long>(json::number(j, "doses/count"))) + " (" +
+                    report::num(json::number(j, "doses/total_mg"), 4) + ")";
+         }},
+        {"First-dose peak", [](const json::Value& j) { return report::num(json::number(j, "intervals/0/peak")); }},
+        {"Steady-state peak", [](const json::Value& j) { return report::num(json::number(j, "steady_state/peak")); }},
+        {"Steady-state trough",
+         [](const json::Value& j) { return report::num(json::number(j, "steady_state/trough")); }},
+        {"Steady-state average",
+         [](const json::Value& j) { return report::num(json::number(j, "steady_state/average")); }},
+        {"AUC24, day 1", [](const json::Value& j) { return report::num(json::number(j, "days/0/auc")); }},
+        {"AUC24, steady state",
+         [](const json::Value& j) { return report::num(json::number(j, "steady_state/auc24")); }},
+        {"Time above threshold, day 1",
+         [](const json::Value& j) { return report::num(json::number(j, "days/0/above_hours"), 4); }},
+        {"Time above threshold, ss",
+         [](const json::Value& j) { return report::percent(json::number(j, "steady_state/above_fraction")); }},
+        {"First reaches threshold",
+         [](const json::Value& j) { return report::num(json::number(j, "above/first_reached"), 4); }},
+        {"Time in window, ss",
+         [](const json::Value& j) {
+             return report::percent(json::number(j, "steady_state/window_hours") /
+                                    json::number(j, "steady_state/interval"));
+         }},
+        {"Time above window, ss",
+         [](const json::Value& j) {
+             return report::percent(json::number(j, "steady_state/above_high_hours") /
+                                    json::number(j, "steady_state/interval"));
+         }},
+        {"Within 10 % of steady state",
+         [](const json::Value& j) { return report::num(json::number(j, "steady_state/within_10pct"), 4); }},
+    };
+
+    for (const auto& row : rows) {
+        INFO("row '" << row.label << "'");
+        REQUIRE(row.cells.size() == regimens.size());
+        if (row.label == "Dose per day") {
+            // 1 g every 8 h and 3 g over each 24 h are both 3000 mg/day (computed from the regimen files); the
+            // JSON has no such figure.
+            CHECK(row.unit == "mg/day");
+            for (const auto& cell : row.cells) CHECK(cell == "3000");
+            continue;
+        }
+        const auto it = expected.find(row.label);
+        REQUIRE(it != expected.end());  // a new row needs its JSON counterpart here
+        for (std::size_t i = 0; i < regimens.size(); ++i) {
+            INFO("regimen " << cs[i].letter << " " << regimens[i]);
+            CHECK(row.cells[i] == it->second(json::at(all, "regimens/" + std::to_string(i))));
+        }
+    }
+}
+
+TEST_CASE("report: continuous infusion figures in the table match the closed form", "[report][json]") {
+    // 3 g per 24 h into CL = 8 L/h with fu = 0.8: free Css = fu·R/CL = 0.8 · 125 / 8 = 12.5 mg/L, peak = trough
+    // = average, and AUC24 = 300 mg·h/L (computed from the closed form).
+    const auto cs = candidates({source_path("regimens/zelmarin-continuous.toml")});
+    const auto f = report::figures_of(cs.front());
+    REQUIRE(f.ss_peak);
+    CHECK(*f.ss_peak == Approx(12.5).epsilon(1e-9));
+    CHECK(*f.ss_trough == Approx(12.5).epsilon(1e-9));
+    CHECK(*f.ss_average == Approx(12.5).epsilon(1e-9));
+    CHECK(*f.auc24_ss == Approx(300.0).epsilon(1e-9));
+    CHECK(f.dose_per_day == Approx(3000.0).epsilon(1e-12));
+    for (const auto& row : report::comparison_rows(cs)) {
+        if (row.label == "Steady-state peak" || row.label == "Steady-state trough") CHECK(row.cells[0] == "12.5");
+        if (row.label == "AUC24, steady state") CHECK(row.cells[0] == "300");
+    }
+}
