@@ -87,7 +87,9 @@ bool resolve_model(Ctx& c, const Value& ref, const std::vector<std::string>& mod
 }  // namespace detail
 
 std::vector<std::string> default_model_dirs() {
-    std::vector<std::string> dirs;
+    // The built-in models first, then PLATEAU_MODELS (the command line's --models come after both), so an id
+    // always means the same model whatever way a folder is added.
+    std::vector<std::string> dirs{std::string(PLATEAU_SOURCE_DIR) + "/models"};
     if (const char* env = std::getenv("PLATEAU_MODELS")) {
         std::string s(env);
         std::size_t start = 0;
@@ -98,7 +100,6 @@ std::vector<std::string> default_model_dirs() {
             start = colon + 1;
         }
     }
-    dirs.push_back(std::string(PLATEAU_SOURCE_DIR) + "/models");
     return dirs;
 }
 

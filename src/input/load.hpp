@@ -22,7 +22,8 @@ model::Model load_model(const std::string& path);
 // Throws InputError.
 regimen::Regimen load_regimen(const std::string& path, const std::vector<std::string>& model_dirs);
 
-// The project's built-in model directory, then any given with --models (callers append those).
+// The project's built-in model directory, then the directories in PLATEAU_MODELS (colon-separated); callers
+// append those given with --models.
 std::vector<std::string> default_model_dirs();
 
 // What kind of file this is, from its top-level keys: "model" (has [compartments]), "regimen" (has [[doses]]

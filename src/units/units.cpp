@@ -283,9 +283,33 @@ Quantity parse_quantity(std::string_view text) {
     return parse_number_and_unit(text, unit_start);
 }
 
+namespace {
+// The units worth suggesting for a dimension, for "unknown unit" messages.
+std::string unit_examples(Dim d) {
+    if (d == kMass) return "an amount unit: ng, ug, mg, g, kg";
+    if (d == kVolume) return "a volume unit: mL, dL, L";
+    if (d == kTime) return "a time unit: s, min, h, d, wk";
+    if (d == kRate) return "a rate unit such as 1/h or 1/min";
+    if (d == kConc) return "a concentration unit such as mg/L, ug/mL, ng/mL";
+    if (d == kAmountRate) return "an input rate unit such as mg/h or g/d";
+    if (d == kFlow) return "a clearance unit such as L/h or mL/min";
+    if (d == kExposure) return "an exposure unit such as mg*h/L";
+    if (d == kNone) return "a plain number or a percentage, like 0.8 or 80 %";
+    return "a unit of " + dim_name(d);
+}
+}  // namespace
+
 Quantity parse_quantity(std::string_view text, Dim expected) {
     std::size_t unit_start = 0;
-    const Quantity q = parse_number_and_unit(text, unit_start);
+    Quantity q;
+    try {
+        q = parse_number_and_unit(text, unit_start);
+    } catch (const TextError& e) {
+        // The generic unit list is less help than the units this value needs.
+        if (std::string_view(e.what()).rfind("unknown unit", 0) == 0)
+            throw TextError(e.what(), e.offset(), e.length(), unit_examples(expected));
+        throw;
+    }
     if (q.dim == expected) return q;
     // Point at the unit if there is one, else at the whole text.
     std::size_t b = unit_start, e = text.size();

@@ -251,7 +251,7 @@ TEST_CASE("input: models are found by id in the given directories and by path re
     CHECK_THROWS_AS(plateau::input::load_regimen(by_id, {(tmp.path / "none").string()}), plateau::InputError);
 }
 
-TEST_CASE("input: the model directories, with PLATEAU_MODELS first", "[input]") {
+TEST_CASE("input: the model directories, built-in first, then PLATEAU_MODELS", "[input]") {
     const char* old = std::getenv("PLATEAU_MODELS");
     const std::string saved = old != nullptr ? old : "";
     ::unsetenv("PLATEAU_MODELS");
@@ -261,7 +261,7 @@ TEST_CASE("input: the model directories, with PLATEAU_MODELS first", "[input]") 
 
     ::setenv("PLATEAU_MODELS", "/a/b::/c", 1);
     dirs = plateau::input::default_model_dirs();
-    CHECK(dirs == std::vector<std::string>{"/a/b", "/c", std::string(PLATEAU_SOURCE_DIR) + "/models"});
+    CHECK(dirs == std::vector<std::string>{std::string(PLATEAU_SOURCE_DIR) + "/models", "/a/b", "/c"});
     if (old != nullptr) ::setenv("PLATEAU_MODELS", saved.c_str(), 1);
     else ::unsetenv("PLATEAU_MODELS");
 }

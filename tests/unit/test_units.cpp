@@ -412,3 +412,21 @@ TEST_CASE("units: dimension checks", "[units]") {
     e = dim_error("4 mgg", kConc);
     CHECK(std::string(e.what()) == "unknown unit 'mgg' in '4 mgg'");
 }
+
+TEST_CASE("units: an unknown unit where a dimension is expected suggests units of that dimension", "[units]") {
+    // Wording of our own messages; no numeric source needed.
+    try {
+        (void)plateau::units::parse_quantity("3 hrs", plateau::units::kTime);
+        FAIL("expected a TextError");
+    } catch (const plateau::TextError& e) {
+        CHECK(std::string(e.what()) == "unknown unit 'hrs' in '3 hrs'");
+        CHECK(e.expected() == "a time unit: s, min, h, d, wk");
+        CHECK(e.offset() == 2);
+    }
+    try {
+        (void)plateau::units::parse_quantity("4 mg/litre", plateau::units::kConc);
+        FAIL("expected a TextError");
+    } catch (const plateau::TextError& e) {
+        CHECK(e.expected() == "a concentration unit such as mg/L, ug/mL, ng/mL");
+    }
+}
