@@ -140,7 +140,7 @@ void inputs(std::ostream& out, const Candidate& c) {
     const std::vector<double> values = r.parameter_values();
     out << "<h3>Inputs</h3>\n<p class=\"small\">Regimen file <code>" << esc(r.path) << "</code>; model <code>"
         << esc(m.id) << "</code> — " << esc(m.summary) << "</p>\n";
-    out << "<table class=\"small\"><thead><tr><th>Parameter</th><th>Value used</th><th>Model default</th><th>About</th></tr></thead><tbody>\n";
+    out << "<table class=\"small\"><thead><tr><th>Parameter</th><th>Value used</th><th>Model default</th><th class=\"t\">About</th></tr></thead><tbody>\n";
     for (std::size_t i = 0; i < m.parameters.size(); ++i) {
         const auto& p = m.parameters[i];
         const bool changed = values[i] != p.value;
