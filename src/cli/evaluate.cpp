@@ -119,10 +119,14 @@ report::Candidate evaluate(regimen::Regimen r, const sim::Options& opt,
                           plural(static_cast<std::size_t>(c.sim.steps), "step") + " in " + quoted(path) +
                           "; nothing was written\n  ";
         if (c.sim.outcome == taylor::Outcome::StepLimit)
-            msg += "the horizon needs more than " + std::to_string(opt.max_steps) +
-                   " steps: try a looser --tol or a shorter horizon";
+            msg += "the horizon needs more than " +
+                   std::to_string(sim::step_budget(opt, c.sim.trajectory.n_series(), c.sim.order)) +
+                   " steps (the budget: " + std::to_string(opt.max_steps) + " steps, 1 GiB of step polynomials): "
+                   "try a looser --tol or a shorter horizon";
         else
-            msg += "check the model's rates and the parameter values: the solution may grow without bound";
+            msg += "the model's expressions are not finite there: check the rates and parameter values (a solution "
+                   "that grows without bound, a division by zero, log of zero, or x^a with a non-integer a where "
+                   "x is 0, e.g. an empty compartment)";
         throw NumericalError(msg);
     }
     metrics::Request req = metrics::request_from(c.regimen, opt);

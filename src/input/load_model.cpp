@@ -104,8 +104,8 @@ void load_parameters(Ctx& c, const Value& root, Names& names, model::Model& m, s
                         p.unit = units::Unit{1.0, p.dim};  // the quantity parsed, so this cannot really happen
                     }
                 }
-                if (p.dim == units::kVolume && p.value < 0.0) {
-                    c.value_error(*val, "the volume '" + e.key + "' is negative", "a volume of 0 L or more");
+                if (p.dim == units::kVolume && !(p.value > 0.0)) {
+                    c.value_error(*val, "the volume '" + e.key + "' must be more than 0", "a volume above 0 L");
                     ok = false;
                 }
             }

@@ -200,8 +200,8 @@ void load_overrides(Ctx& c, const Value& table, const model::Model& m, regimen::
         if (!p.unit_text.empty()) example += " " + p.unit_text;
         auto q = quantity(c, e.value, e.key, p.dim, example, p.dim.dimensionless());
         if (!q) continue;
-        if (p.dim == units::kVolume && q->value < 0.0) {
-            c.value_error(e.value, "the volume '" + e.key + "' is negative", "a volume of 0 L or more");
+        if (p.dim == units::kVolume && !(q->value > 0.0)) {
+            c.value_error(e.value, "the volume '" + e.key + "' must be more than 0", "a volume above 0 L");
             continue;
         }
         regimen::Override o;
@@ -372,16 +372,19 @@ void check_schedule(Ctx& c, const std::vector<DoseEntry>& doses, regimen::Horizo
         for (const auto& d : doses) {
             const regimen::DoseSpec& s = d.spec;
             const double last = last_time(s);
-            if (!(last > h.until)) continue;
+            if (last < h.until) continue;
+            // The first dose of the entry at or after the horizon end.
             long k = 0;
-            if (s.at <= h.until && s.every > 0.0)
-                k = std::min(s.count - 1, static_cast<long>(std::floor((h.until - s.at) / s.every)) + 1);
+            if (s.at < h.until && s.every > 0.0)
+                k = std::min(s.count - 1, static_cast<long>(std::ceil((h.until - s.at) / s.every - 1e-12)));
             const double when = s.at + static_cast<double>(k) * s.every;
             std::string what = s.count == 1 ? "the dose at " + hours(when)
                                             : "dose " + std::to_string(k + 1) + " of " + std::to_string(s.count) +
                                                   ", at " + hours(when) + ",";
-            c.error(s.pos, entry_name(d) + ": " + what + " is after the horizon ends at " + hours(h.until),
-                    "a [horizon] until of at least " + hours(last) + ", or fewer doses");
+            c.error(s.pos, entry_name(d) + ": " + what +
+                               (when > h.until ? " is after the horizon ends at " + hours(h.until)
+                                               : " is at the end of the horizon, where it can have no effect"),
+                    "a [horizon] until later than " + hours(last) + ", or fewer doses");
         }
     }
     const double points = h.until / h.step;

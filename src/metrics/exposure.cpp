@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <limits>
 
 namespace plateau::metrics {
 
@@ -51,6 +52,19 @@ std::optional<double> settled_from(const traj::Trajectory& tr, int s, double sta
     return t;
 }
 
+bool uses_time(const model::Model& m) {
+    auto has_t = [](const expr::Ptr& p) {
+        if (!p) return false;
+        const auto ids = expr::identifiers(*p);
+        return std::find(ids.begin(), ids.end(), "t") != ids.end();
+    };
+    for (const auto& r : m.rates)
+        if (has_t(r.expr)) return true;
+    for (const auto& o : m.outputs)
+        if (has_t(o.expr)) return true;
+    return false;
+}
+
 }  // namespace
 
 Request request_from(const regimen::Regimen& r, const sim::Options& opt) {
@@ -75,10 +89,20 @@ Exposure compute(const regimen::Regimen& r, const sim::Simulation& sim, const Re
 
     e.peak = maximum(tr, s, e.start, e.end);
     // The minimum from the first dose's peak on: before it, an infusion or an oral dose starts from zero, which
-    // says nothing about the regimen.
+    // says nothing about the regimen. With a lag longer than the interval the first intervals stay at zero:
+    // the first peak is then the first one above zero.
     {
-        const double first_end = doses.size() > 1 ? std::min(doses[1], e.end) : e.end;
-        const double from = e.first_dose < first_end ? maximum(tr, s, e.first_dose, first_end).time : e.first_dose;
+        double from = e.first_dose;
+        for (std::size_t i = 0; i < doses.size(); ++i) {
+            const double a = std::max(doses[i], e.start);
+            const double b = i + 1 < doses.size() ? std::min(doses[i + 1], e.end) : e.end;
+            if (!(b > a)) continue;
+            const Extreme pk = maximum(tr, s, a, b);
+            if (pk.value > 0.0) {
+                from = pk.time;
+                break;
+            }
+        }
         e.minimum = minimum(tr, s, from, e.end);
     }
     e.auc = tr.integral(s, e.start, e.end);
@@ -133,6 +157,12 @@ Exposure compute(const regimen::Regimen& r, const sim::Simulation& sim, const Re
         Steady st;
         st.interval = period->tau;
         st.period_start = period->start;
+        if (uses_time(r.model)) {
+            // Rates that change with t: one interval is not like the next, so there is no periodic state.
+            st.why_not = "the model's expressions depend on the time t, so the intervals never repeat exactly";
+            e.steady = st;
+            return e;
+        }
         std::vector<double> guess;
         if (period->start <= e.end)
             for (int k = 0; k < sim.n_states; ++k) guess.push_back(tr.left_limit(k, std::max(period->start, e.start)));
@@ -156,7 +186,10 @@ Exposure compute(const regimen::Regimen& r, const sim::Simulation& sim, const Re
             st.window_hours = iv.window_hours;
             if (req.window) st.above_window_hours = level(pt, s, req.window->second, 0.0, tau).hours_above;
             st.first_interval_auc = sol.first_dose.trajectory.integral(s, 0.0, tau);
-            st.accumulation = st.first_interval_auc > 0 ? st.auc / st.first_interval_auc : 0.0;
+            // Undefined (NaN, printed as absent) when the first dose shows nothing within one interval (a lag
+            // longer than the interval).
+            st.accumulation = st.first_interval_auc > 0 ? st.auc / st.first_interval_auc
+                                                        : std::numeric_limits<double>::quiet_NaN();
             // Judged up to the end of the final series' last full interval (or the horizon, if sooner).
             const double check_end = std::min(e.end, period->start + tau);
             st.within_10pct = settled_from(tr, s, e.first_dose, check_end, st.minimum.value, st.peak.value, 0.10);

@@ -48,7 +48,9 @@ LevelResult level(const traj::Trajectory& tr, int series, double c, double a, do
         const double lo = cuts[i], hi = cuts[i + 1];
         if (!(hi > lo)) continue;
         const double mid = 0.5 * (lo + hi);
-        int state = tr.value(series, mid) > c ? 1 : -1;
+        // Above means above by more than round-off: a curve sitting on the level (a plateau exactly at a
+        // threshold) is not above it, whatever the last bits say.
+        int state = tr.value(series, mid) - c > 1e-12 * std::abs(c) ? 1 : -1;
         // A sliver between a root and a step boundary that round-off put a hair apart: no new crossing.
         if (prev != 0 && hi - lo < 1e-12 * std::max(1.0, std::abs(hi))) state = prev;
         if (state == 1) out.hours_above += hi - lo;

@@ -28,7 +28,7 @@ struct Crossing {
 };
 
 struct LevelResult {
-    double hours_above = 0.0;            // measure of {t in [a, b] : x(t) > level}
+    double hours_above = 0.0;            // measure of {t in [a, b] : x(t) > level (1 + 1e-12)}
     std::vector<Crossing> crossings;     // in time order, strictly inside (a, b) or at a jump
 };
 

@@ -45,7 +45,7 @@ void write_exposure_text(std::ostream& out, const regimen::Regimen& r, const sim
         row(out, "First reaches " + c(*e.above), e.first_reached ? "at " + num(*e.first_reached, 6) + " h" : "never");
         std::string xs;
         for (std::size_t i = 0; i < e.crossings.size() && i < 6; ++i)
-            xs += (i ? ", " : "") + num(e.crossings[i].time, 5) + (e.crossings[i].up ? " up" : " down");
+            xs += (i ? ", " : "") + num(e.crossings[i].time, 8) + (e.crossings[i].up ? " up" : " down");
         if (e.crossings.size() > 6) xs += ", ... (" + std::to_string(e.crossings.size()) + " in all)";
         row(out, "Crossings (h)", xs.empty() ? "none" : xs);
     }
@@ -66,8 +66,8 @@ void write_exposure_text(std::ostream& out, const regimen::Regimen& r, const sim
         for (const auto& h : head) out << pad_left(h, wcol);
         out << '\n';
         auto line = [&](const metrics::Interval& iv) {
-            out << "  " << pad_left(num(iv.start, 5), wcol) << pad_left(num(iv.end, 5), wcol)
-                << pad_left(num(in_output_unit(o, iv.peak.value)), wcol) << pad_left(num(iv.peak.time, 5), wcol)
+            out << "  " << pad_left(num(iv.start, 8), wcol) << pad_left(num(iv.end, 8), wcol)
+                << pad_left(num(in_output_unit(o, iv.peak.value)), wcol) << pad_left(num(iv.peak.time, 8), wcol)
                 << pad_left(num(in_output_unit(o, iv.trough)), wcol)
                 << pad_left(num(in_output_unit(o, iv.minimum.value)), wcol)
                 << pad_left(num(in_output_unit(o, iv.auc), 5), wcol);

@@ -28,6 +28,7 @@ struct Raw {
     int compartment;
     double bolus;
     double rate;
+    bool computed;  // an infusion's end, start + duration: carries round-off the dose times do not
 };
 }  // namespace
 
@@ -44,18 +45,25 @@ std::vector<Event> build_events(const model::Model& m, std::span<const double> p
         const double t = d.time + lag;
         if (d.duration > 0.0) {
             const double rate = f * d.amount / d.duration;
-            raw.push_back({t, route.into, 0.0, rate});
-            raw.push_back({t + d.duration, route.into, 0.0, -rate});
+            raw.push_back({t, route.into, 0.0, rate, lag != 0.0});
+            raw.push_back({t + d.duration, route.into, 0.0, -rate, true});
         } else {
-            raw.push_back({t, route.into, f * d.amount, 0.0});
+            raw.push_back({t, route.into, f * d.amount, 0.0, lag != 0.0});
         }
     }
     std::stable_sort(raw.begin(), raw.end(), [](const Raw& a, const Raw& b) { return a.time < b.time; });
     const std::size_t nc = m.compartments.size();
     std::vector<Event> events;
+    std::vector<bool> exact;  // the event's time is a dose time as written, not a computed one
     for (const auto& r : raw) {
         if (events.empty() || r.time - events.back().time > 1e-9 * std::max(1.0, std::abs(r.time))) {
             events.push_back(Event{r.time, std::vector<double>(nc, 0.0), std::vector<double>(nc, 0.0)});
+            exact.push_back(!r.computed);
+        } else if (!r.computed && !exact.back()) {
+            // An infusion ending at 0.7999999999999999 and a dose at 0.8 are one event, at the dose's time, so
+            // that the dose time is a step boundary and the value just before it is the left limit there.
+            events.back().time = r.time;
+            exact.back() = true;
         }
         auto& ev = events.back();
         ev.bolus[static_cast<std::size_t>(r.compartment)] += r.bolus;

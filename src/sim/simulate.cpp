@@ -15,6 +15,11 @@ taylor::Tape model_tape(const model::Model& m) {
     return taylor::compile(spec);
 }
 
+long step_budget(const Options& opt, int n_series, int order) {
+    const double per_step = 8.0 * static_cast<double>(n_series) * static_cast<double>(order + 1) + 16.0;
+    return std::max(1L, std::min(opt.max_steps, static_cast<long>(opt.max_bytes / per_step)));
+}
+
 Simulation integrate_events(const model::Model& m, taylor::Stepper& stepper, const std::vector<Event>& events,
                             std::span<const double> x0, double t_end, const Options& opt) {
     Simulation sim;
@@ -26,6 +31,7 @@ Simulation integrate_events(const model::Model& m, taylor::Stepper& stepper, con
     const std::size_t nc = m.compartments.size();
     std::vector<double> x(x0.begin(), x0.end()), u(nc, 0.0), coeffs;
     const std::size_t stride = static_cast<std::size_t>(stepper.order()) + 1;
+    const long budget = step_budget(opt, stepper.n_series(), stepper.order());
     double t = 0.0;
     std::size_t next = 0;
     while (true) {
@@ -42,7 +48,7 @@ Simulation integrate_events(const model::Model& m, taylor::Stepper& stepper, con
         if (t >= t_end) break;
         const double stop = next < events.size() ? std::min(events[next].time, t_end) : t_end;
         while (t < stop) {
-            if (sim.steps >= opt.max_steps) {
+            if (sim.steps >= budget) {
                 sim.outcome = taylor::Outcome::StepLimit;
                 sim.failed_at = t;
                 return sim;

@@ -19,7 +19,11 @@ struct Options {
     double tol = 1e-10;          // integration tolerance (sets the Taylor order)
     int order = 0;               // > 0 forces the order
     long max_steps = 2'000'000;  // step budget over the whole horizon
+    double max_bytes = 1024.0 * 1024.0 * 1024.0;  // memory budget of the kept step polynomials (1 GiB)
 };
+
+// The step budget of a simulation: max_steps, lowered so that the kept polynomials fit in max_bytes.
+long step_budget(const Options& opt, int n_series, int order);
 
 struct Simulation {
     traj::Trajectory trajectory; // series: compartments (mg), then outputs (canonical units)

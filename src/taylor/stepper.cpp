@@ -20,15 +20,19 @@ double jorba_zou_step(std::span<const double> coeffs, int n_series, int order) {
             m = std::max(m, std::abs(coeffs[s * stride + static_cast<std::size_t>(j)]));
         return m;
     };
-    // Relative control: N = ‖x[0]‖∞ (1 when everything is zero). The mixed form N = max(1, ‖x[0]‖∞) turns
-    // absolute once all amounts fall below 1 mg, and the steps then grow until the polynomial of a fast
-    // series (an emptied gut) no longer decays: the terminal phase would stall at round-off level.
+    // Relative control: N = ‖x[0]‖∞. The mixed form N = max(1, ‖x[0]‖∞) turns absolute once all amounts fall
+    // below 1 mg, and the steps then grow until the polynomial of a fast series (an emptied gut) no longer
+    // decays: the terminal phase would stall at round-off level. When everything starts at zero (an infusion
+    // into an empty model) the scale is the linear growth term instead: ρ_j = (‖x[1]‖/‖x[j]‖)^{1/(j−1)}.
     const double n0 = norm(0);
-    const double big = n0 > 0.0 ? n0 : 1.0;
+    const double n1 = n0 > 0.0 ? 0.0 : norm(1);
     const double inf = std::numeric_limits<double>::infinity();
     auto rho = [&](int j) {
         const double nj = norm(j);
-        return nj > 0.0 ? std::pow(big / nj, 1.0 / static_cast<double>(j)) : inf;
+        if (!(nj > 0.0)) return inf;
+        if (n0 > 0.0) return std::pow(n0 / nj, 1.0 / static_cast<double>(j));
+        if (n1 > 0.0 && j > 1) return std::pow(n1 / nj, 1.0 / static_cast<double>(j - 1));
+        return std::pow(1.0 / nj, 1.0 / static_cast<double>(j));
     };
     const double r = std::min(rho(order - 1), rho(order));
     if (r == inf) return inf;

@@ -12,8 +12,9 @@ namespace plateau::taylor {
 // p = ⌈−½·ln ε + 1⌉, at least 2.
 int order_for_tolerance(double tol);
 
-// h = min(ρ_{p−1}, ρ_p)·e^{−2}·e^{−0.7/(p−1)}, ρ_j = (N/‖x[j]‖∞)^{1/j}, N = ‖x[0]‖∞ (1 if that is 0), norms
-// over all series: relative error control, so a terminal phase far below 1 mg keeps its accuracy. Returns +infinity when both coefficients vanish (the series is then a polynomial of lower degree).
+// h = min(ρ_{p−1}, ρ_p)·e^{−2}·e^{−0.7/(p−1)}, ρ_j = (N/‖x[j]‖∞)^{1/j}, N = ‖x[0]‖∞, norms over all series:
+// relative error control, so a terminal phase far below 1 mg keeps its accuracy. When every series is zero,
+// ρ_j = (‖x[1]‖∞/‖x[j]‖∞)^{1/(j−1)} (relative to the linear growth), and N = 1 if that is zero too. Returns +infinity when both coefficients vanish (the series is then a polynomial of lower degree).
 double jorba_zou_step(std::span<const double> coeffs, int n_series, int order);
 
 enum class Outcome { Ok, NonFinite, StepLimit };

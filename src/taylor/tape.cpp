@@ -87,11 +87,19 @@ public:
         if (auto v = expr::fold_number(exponent_node)) {
             const double k = *v;
             if (k == 0.0) return constant(1.0);
-            if (k == 1.0) return base;
-            if (k == 2.0) return binary(OpCode::Mul, base, base);
-            if (k == 3.0) return binary(OpCode::Mul, binary(OpCode::Mul, base, base), base);
-            if (k == -1.0) return binary(OpCode::Div, constant(1.0), base);
             if (k == 0.5) return unary(OpCode::Sqrt, base);
+            // Whole powers become products (binary exponentiation), negative ones a quotient: they stay
+            // analytic where the base is zero, which the general recurrence (it divides by the base) is not.
+            if (k == std::floor(k) && std::abs(k) <= 64.0) {
+                long m = static_cast<long>(std::abs(k));
+                int result = -1, square = base;
+                while (m > 0) {
+                    if (m & 1) result = result < 0 ? square : binary(OpCode::Mul, result, square);
+                    m >>= 1;
+                    if (m > 0) square = binary(OpCode::Mul, square, square);
+                }
+                return k > 0 ? result : binary(OpCode::Div, constant(1.0), result);
+            }
         }
         if (!is_const(exponent)) throw std::invalid_argument("exponent must be constant over time");
         return emit({OpCode::PowK, base, exponent, 0.0, is_const(base)});

@@ -52,8 +52,8 @@ struct Tape {
 };
 
 // Merges all expressions into one DAG (structurally equal subexpressions share a slot), folds constants and
-// chooses the cheap variants (×k, +k) where one operand is constant. Integer powers 2 and 3 become products,
-// −1 a quotient, so states that start at zero stay analytic. Throws std::invalid_argument on an unknown
+// chooses the cheap variants (×k, +k) where one operand is constant. Whole-number powers (up to 64) become
+// products, negative ones a quotient, so states that start at zero stay analytic. Throws std::invalid_argument on an unknown
 // identifier (input/ has already reported such errors with file positions).
 Tape compile(const SystemSpec& spec);
 

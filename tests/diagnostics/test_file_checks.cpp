@@ -252,5 +252,5 @@ TEST_CASE("input: a dose past the end of the horizon is named", "[input][diagnos
     CHECK(located(ds) == std::vector<std::string>{
                              "6:1: [[doses]] entry 2 (route 'oral'): the dose at 30 h is after the horizon ends at 24 h"});
     REQUIRE(ds.size() == 1);
-    CHECK(ds[0].expected == "a [horizon] until of at least 30 h, or fewer doses");
+    CHECK(ds[0].expected == "a [horizon] until later than 30 h, or fewer doses");
 }
