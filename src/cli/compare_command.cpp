@@ -39,7 +39,7 @@ int compare_command(const CompareOptions& opt, std::ostream& out, std::ostream& 
                 throw UsageError("regimens compare one output in one unit: " + quoted(r0.path) + " measures " +
                                  quoted(o0.name + " (" + o0.unit_text + ")") + " but " + quoted(r.path) +
                                  " measures " + quoted(o.name + " (" + o.unit_text + ")") +
-                                 "; set [targets] output to the same output in every file");
+                                 "; set [targets] output to the same output in every file, or give --output NAME");
         }
 
         std::vector<std::string> notes = report::unify_targets(loaded);

@@ -79,7 +79,9 @@ void apply_targets(regimen::Regimen& r, const TargetOverrides& t) {
     }
     if (!t.above_for.empty()) {
         const double f = quantity_of(t.above_for, units::kNone, "--above-for", "50%", false, 1.0);
-        if (!(f > 0.0 && f <= 1.0)) throw UsageError("--above-for: expected a share from 0 % to 100 %, got " + quoted(t.above_for));
+        if (!(f > 0.0 && f <= 1.0))
+            throw UsageError("--above-for: expected a share above 0 % and at most 100 %, written like 60% or 0.6, got " +
+                             quoted(t.above_for));
         if (!r.targets.above) throw UsageError("--above-for needs a threshold: add --above or set 'above' in [targets]");
         r.targets.above_for = f;
     }

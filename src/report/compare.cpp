@@ -103,11 +103,30 @@ std::vector<Row> comparison_rows(const std::vector<Candidate>& cs) {
     if (any_steady) {
         add("Steady-state peak", u, [](const Candidate& c, const Figures& f) { return conc(c, f.ss_peak); });
         add("Steady-state trough", u, [](const Candidate& c, const Figures& f) { return conc(c, f.ss_trough); });
+        // The lowest value differs from the trough when it comes after the dose (an absorption lag): the window
+        // verdict uses it, so the table shows it.
+        const bool any_lowest = std::any_of(cs.begin(), cs.end(), [](const Candidate& c) {
+            const auto& st = c.exposure.steady;
+            return st && st->found && st->minimum.value < st->trough * (1 - 1e-9);
+        });
+        if (any_lowest)
+            add("Steady-state lowest", u, [](const Candidate& c, const Figures& f) {
+                const auto& st = c.exposure.steady;
+                return f.ss_peak ? conc(c, st->minimum.value) : std::string("—");
+            });
         add("Steady-state average", u, [](const Candidate& c, const Figures& f) { return conc(c, f.ss_average); });
     }
     add("AUC24, day 1", au, [](const Candidate& c, const Figures& f) {
         return num(in_output_unit(output_of(c), f.auc24_day1));
     });
+    // Windows asked with --auc, in the order given (every candidate has the same list).
+    for (std::size_t w = 0; w < cs.front().exposure.auc_windows.size(); ++w) {
+        const auto& aw = cs.front().exposure.auc_windows[w];
+        add("AUC " + num(aw.from, 6) + "–" + num(aw.to, 6) + " h", au, [w](const Candidate& c, const Figures&) {
+            const auto& ws = c.exposure.auc_windows;
+            return w < ws.size() ? num(in_output_unit(output_of(c), ws[w].value)) : std::string("—");
+        });
+    }
     if (any_steady)
         add("AUC24, steady state", au, [](const Candidate& c, const Figures& f) {
             return f.auc24_ss ? num(in_output_unit(output_of(c), *f.auc24_ss)) : std::string("—");
@@ -182,9 +201,6 @@ std::vector<std::string> summary_sentences(const std::vector<Candidate>& cs) {
                               " times " + A + "'s, its trough " + num(*b.ss_trough / std::max(*a.ss_trough, 1e-300), 3) +
                               " times.");
         }
-        if (a.within_10pct && b.within_10pct && std::abs(*a.within_10pct - *b.within_10pct) >= 1.0)
-            out.push_back(B + " comes within 10 % of its steady state " + num(std::abs(*a.within_10pct - *b.within_10pct), 3) +
-                          " h " + (*b.within_10pct < *a.within_10pct ? "earlier" : "later") + " than " + A + ".");
         if (!b.no_steady_state.empty()) out.push_back(B + " has no steady state: " + b.no_steady_state + ".");
     }
     if (!a.no_steady_state.empty()) out.insert(out.begin(), A + " has no steady state: " + a.no_steady_state + ".");
@@ -295,11 +311,17 @@ void write_compare_text(std::ostream& out, const std::vector<Candidate>& cs, con
     const auto& t = first.regimen.targets;
     if (first.exposure.above || first.exposure.window) {
         std::string tg = "Targets:";
-        if (first.exposure.above) tg += " threshold " + num(in_output_unit(o, *first.exposure.above)) + " " + o.unit_text + ";";
+        if (first.exposure.above) {
+            tg += " threshold " + num(in_output_unit(o, *first.exposure.above)) + " " + o.unit_text;
+            if (t.above_for) tg += " for " + percent(*t.above_for) + " of each interval";
+            tg += ";";
+        }
         if (first.exposure.window)
             tg += " window " + num(in_output_unit(o, first.exposure.window->first)) + " .. " +
                   num(in_output_unit(o, first.exposure.window->second)) + " " + o.unit_text + ";";
-        if (t.auc24) tg += " AUC24 " + num(in_output_unit(o, t.auc24->first)) + " .. " + num(in_output_unit(o, t.auc24->second)) + ";";
+        if (t.auc24)
+            tg += " AUC24 " + num(in_output_unit(o, t.auc24->first)) + " .. " + num(in_output_unit(o, t.auc24->second)) +
+                  " " + auc_unit(o.unit_text) + ";";
         tg.pop_back();
         out << '\n';
         wrap(out, tg, width, "", "  ");

@@ -44,9 +44,9 @@ void write_exposure_text(std::ostream& out, const regimen::Regimen& r, const sim
         row(out, "Time above " + c(*e.above), hours(e.above_hours) + " (" + percent(e.above_fraction) + " of the horizon)");
         row(out, "First reaches " + c(*e.above), e.first_reached ? "at " + num(*e.first_reached, 6) + " h" : "never");
         std::string xs;
-        for (std::size_t i = 0; i < e.crossings.size() && i < 6; ++i)
-            xs += (i ? ", " : "") + num(e.crossings[i].time, 8) + (e.crossings[i].up ? " up" : " down");
-        if (e.crossings.size() > 6) xs += ", ... (" + std::to_string(e.crossings.size()) + " in all)";
+        for (std::size_t i = 0; i < e.crossings.size() && i < 3; ++i)
+            xs += (i ? ", " : "") + num(e.crossings[i].time, 6) + (e.crossings[i].up ? " up" : " down");
+        if (e.crossings.size() > 3) xs += ", ... (" + std::to_string(e.crossings.size()) + " in all, --json)";
         row(out, "Crossings (h)", xs.empty() ? "none" : xs);
     }
     if (e.window) {
@@ -61,7 +61,7 @@ void write_exposure_text(std::ostream& out, const regimen::Regimen& r, const sim
         std::vector<std::string> head = {"start h", "end h", "peak", "at h", "trough", "minimum", "AUC"};
         if (e.above) head.push_back("above h");
         if (e.window) head.push_back("window h");
-        const std::size_t wcol = 11;
+        const std::size_t wcol = 10;
         out << "  ";
         for (const auto& h : head) out << pad_left(h, wcol);
         out << '\n';
@@ -115,7 +115,7 @@ void write_exposure_text(std::ostream& out, const regimen::Regimen& r, const sim
             row(out, "Time above the window", hours(st.above_window_hours) + " per interval (" +
                                                   percent(st.above_window_hours / st.interval) + ")");
         }
-        row(out, "Accumulation ratio (AUC)", num(st.accumulation, 5) + " (steady-state interval / first dose alone)");
+        row(out, "Accumulation ratio (AUC)", num(st.accumulation, 5) + " (steady state / one interval's doses alone)");
         row(out, "Within 10 % of steady state", st.within_10pct ? "from " + num(*st.within_10pct, 5) + " h" : "not within the horizon");
         row(out, "Within 5 % of steady state", st.within_5pct ? "from " + num(*st.within_5pct, 5) + " h" : "not within the horizon");
     }
@@ -123,7 +123,7 @@ void write_exposure_text(std::ostream& out, const regimen::Regimen& r, const sim
     if (!vs.empty()) {
         out << "\nTargets\n";
         for (const auto& v : vs)
-            row(out, v.met ? (*v.met ? "meets" : "falls short") : "not assessed", v.what);
+            out << "  " << pad_right(v.met ? (*v.met ? "meets" : "falls short") : "not assessed", 14) << v.what << '\n';
     }
 }
 

@@ -69,7 +69,7 @@ const char* kStyle = R"(
   @page { size: auto; margin: 14mm; }
   @media print {
     body { max-width: none; margin: 0; padding: 0; font-size: 11pt; }
-    h2 { break-after: avoid; } figure, tr, .caution { break-inside: avoid; }
+    h2, h3, section.regimen > p { break-after: avoid; } figure, tr, .caution { break-inside: avoid; }
     thead { display: table-header-group; }
     section.regimen > h2 { break-before: auto; }
     table { width: 100%; }
@@ -155,7 +155,7 @@ void inputs(std::ostream& out, const Candidate& c) {
         const auto& d = r.doses[i];
         out << "<tr><td>" << i + 1 << "</td><td>" << esc(d.route) << "</td><td>" << num(d.amount, 6) << " mg</td><td>"
             << num(d.at, 6) << " h</td><td>" << (d.count > 1 ? num(d.every, 6) + " h" : "—") << "</td><td>" << d.count
-            << "</td><td>" << (d.over > 0 ? num(d.over, 6) + " h" : "bolus") << "</td></tr>\n";
+            << "</td><td>" << (d.over > 0 ? num(d.over, 6) + " h" : "at once") << "</td></tr>\n";
     }
     out << "</tbody></table>\n";
 }
@@ -273,7 +273,10 @@ void write_html(std::ostream& out, const std::vector<Candidate>& cs, const HtmlO
     for (const auto& c : cs) {
         out << "<section class=\"regimen\"><h2>" << esc(c.letter) << ": " << esc(c.regimen.id) << "</h2>\n<p>"
             << esc(c.regimen.about) << "</p>\n";
-        figure(out, interval_figure(c), "The first dosing interval and one interval at steady state, from the dose.", draw);
+        figure(out, interval_figure(c),
+               "The first interval of the repeating series (after any loading dose) and one interval at steady "
+               "state, from the dose.",
+               draw);
         interval_table(out, c);
         inputs(out, c);
         out << "</section>\n";

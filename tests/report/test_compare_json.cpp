@@ -158,3 +158,29 @@ TEST_CASE("report: continuous infusion figures in the table match the closed for
         if (row.label == "AUC24, steady state") CHECK(row.cells[0] == "300");
     }
 }
+
+TEST_CASE("report: --auc windows appear in the comparison table with the JSON values", "[report][json]") {
+    TempDir dir("auc-windows");
+    cli::CompareOptions o = compare_options(demo_regimens());
+    o.auc = {"0h..24h", "48..72"};
+    o.json = dir.file("c.json");
+    const Result r = compare(o);
+    REQUIRE(r.code == cli::kExitOk);
+    const json::Value all = json::parse(slurp(o.json));
+    for (std::size_t w = 0; w < 2; ++w) {
+        const std::string label = w == 0 ? "AUC 0–24 h (mg·h/L)" : "AUC 48–72 h (mg·h/L)";
+        const auto line_at = r.out.find(label);
+        REQUIRE(line_at != std::string::npos);
+        const std::string line = r.out.substr(line_at, r.out.find('\n', line_at) - line_at);
+        for (std::size_t i = 0; i < 4; ++i) {
+            // The table shows the JSON value rounded as displayed.
+            const double v = json::number(json::at(all, "regimens/" + std::to_string(i)),
+                                          "auc_windows/" + std::to_string(w) + "/value");
+            CHECK(line.find(report::num(v)) != std::string::npos);
+        }
+    }
+    // The same-daily-dose regimens all reach AUC24 = 300 mg·h/L at steady state; day 3 (48–72 h) is close to it
+    // for the regimens without a loading dose (computed from the closed form: fu·dose per day/CL = 300).
+    const double a = json::number(json::at(all, "regimens/1"), "auc_windows/1/value");
+    CHECK(a == Approx(300.0).epsilon(0.01));
+}
