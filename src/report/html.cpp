@@ -160,6 +160,55 @@ void inputs(std::ostream& out, const Candidate& c) {
     out << "</tbody></table>\n";
 }
 
+// The figures of one regimen as a two-column table (the terminal's exposure block, for the page).
+void figures_table(std::ostream& out, const Candidate& c) {
+    const auto& o = output_of(c);
+    const auto& e = c.exposure;
+    const std::string u = o.unit_text, au = auc_unit(o.unit_text);
+    auto v = [&](double x) { return num(in_output_unit(o, x), 6) + " " + u; };
+    auto t = [](double h) { return num(h, 6) + " h"; };
+    std::vector<std::pair<std::string, std::string>> rows;
+    rows.push_back({"Peak", v(e.peak.value) + " at " + t(e.peak.time)});
+    rows.push_back({"Minimum after the first peak", v(e.minimum.value) + " at " + t(e.minimum.time)});
+    rows.push_back({"AUC " + num(e.start, 6) + "–" + num(e.end, 6) + " h", num(in_output_unit(o, e.auc), 6) + " " + au});
+    for (const auto& w : e.auc_windows)
+        rows.push_back({"AUC " + num(w.from, 6) + "–" + num(w.to, 6) + " h", num(in_output_unit(o, w.value), 6) + " " + au});
+    if (e.above) {
+        rows.push_back({"Time above " + v(*e.above), num(e.above_hours, 5) + " h (" + percent(e.above_fraction) + " of the horizon)"});
+        rows.push_back({"First above " + v(*e.above), e.first_reached ? "at " + t(*e.first_reached) : "never"});
+        rows.push_back({"Crossings of the threshold", std::to_string(e.crossings.size())});
+    }
+    if (e.window) {
+        rows.push_back({"Time inside the window", num(e.window_hours, 5) + " h (" + percent(e.window_fraction) + ")"});
+        rows.push_back({"Time above the window", num(e.above_window_hours, 5) + " h (" + percent(e.above_window_fraction) + ")"});
+    }
+    if (e.steady && !e.steady->found) rows.push_back({"Steady state", e.steady->why_not});
+    if (e.steady && e.steady->found) {
+        const auto& st = *e.steady;
+        if (st.constant) {
+            rows.push_back({"Steady state: level", v(st.peak.value) + ", constant"});
+        } else {
+            rows.push_back({"Steady state: peak", v(st.peak.value) + ", " + t(st.peak.time) + " after the dose"});
+            rows.push_back({"Steady state: trough", v(st.trough)});
+            if (st.minimum.value < st.trough * (1 - 1e-9))
+                rows.push_back({"Steady state: lowest", v(st.minimum.value) + ", " + t(st.minimum.time) + " after the dose"});
+        }
+        rows.push_back({"Steady state: average", v(st.average)});
+        rows.push_back({"Steady state: AUC per interval / 24 h", num(in_output_unit(o, st.auc), 6) + " / " +
+                                                                    num(in_output_unit(o, st.auc24), 6) + " " + au});
+        if (e.above) rows.push_back({"Steady state: time above the threshold", percent(st.above_hours / st.interval) + " of each interval"});
+        if (e.window) rows.push_back({"Steady state: time in the window", percent(st.window_hours / st.interval) + " of each interval"});
+        rows.push_back({"Accumulation ratio (AUC)", num(st.accumulation, 5)});
+        rows.push_back({"Within 10 % / 5 % of steady state",
+                        (st.within_10pct ? "from " + t(*st.within_10pct) : std::string("not within the horizon")) + " / " +
+                            (st.within_5pct ? "from " + t(*st.within_5pct) : std::string("not within the horizon"))});
+    }
+    out << "<h3>Figures</h3>\n<table class=\"small\"><tbody>\n";
+    for (const auto& [label, value] : rows)
+        out << "<tr><td>" << esc(label) << "</td><td class=\"t\">" << esc(value) << "</td></tr>\n";
+    out << "</tbody></table>\n";
+}
+
 void interval_table(std::ostream& out, const Candidate& c) {
     const auto& o = output_of(c);
     const auto& e = c.exposure;
@@ -235,7 +284,7 @@ void write_html(std::ostream& out, const std::vector<Candidate>& cs, const HtmlO
             << esc(c.regimen.about) << "</td><td class=\"t\">" << esc(c.regimen.model.id) << "</td></tr>\n";
     out << "</tbody></table>\n";
 
-    out << "<h2>Figures side by side</h2>\n";
+    out << (cs.size() > 1 ? "<h2>Figures side by side</h2>\n" : "<h2>Key figures</h2>\n");
     table_rows(out, cs);
 
     const auto checks = target_checks(cs);
@@ -263,10 +312,11 @@ void write_html(std::ostream& out, const std::vector<Candidate>& cs, const HtmlO
 
     out << "<h2>Concentration over time</h2>\n";
     {
-        std::string caption = "All regimens over the horizon.";
+        std::string caption = cs.size() > 1 ? "All regimens over the horizon." : "The regimen over the horizon.";
         if (first.exposure.above) caption += " Dashed line: threshold.";
         if (first.exposure.window) caption += " Shaded band: window.";
-        caption += " Ticks below the axis: doses, one row per regimen in the order of the key.";
+        caption += cs.size() > 1 ? " Ticks below the axis: doses, one row per regimen in the order of the key."
+                                 : " Ticks below the axis: doses.";
         figure(out, overlay_figure(cs), caption, draw);
     }
 
@@ -277,6 +327,7 @@ void write_html(std::ostream& out, const std::vector<Candidate>& cs, const HtmlO
                "The first interval of the repeating series (after any loading dose) and one interval at steady "
                "state, from the dose.",
                draw);
+        figures_table(out, c);
         interval_table(out, c);
         inputs(out, c);
         out << "</section>\n";
