@@ -213,6 +213,11 @@ TEST_CASE("report: the HTML report of a single run has one overlay and one regim
     CHECK(count_of(html, "<svg") == 2);
     CHECK(count_of(html, html_escape(report::kCaution)) == 2);
     CHECK(html.find("<title>plateau report: zelmarin-q8h-30min</title>") != std::string::npos);
+    // The regimen's own figures table, with the steady-state block: Css,avg = fu·(3 g/day)/24 h/CL = 12.5 mg/L
+    // (computed from the closed form).
+    CHECK(count_of(html, "<h3>Figures</h3>") == 1);
+    CHECK(html.find("<tr><td>Steady state: average</td><td class=\"t\">12.5 mg/L</td></tr>") != std::string::npos);
+    CHECK(html.find("<h2>Key figures</h2>") != std::string::npos);
 }
 
 TEST_CASE("report: without gnuplot the HTML report is still written, with a note for each figure", "[report][html]") {
