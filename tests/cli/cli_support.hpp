@@ -40,6 +40,15 @@ inline Result run(const cli::RunOptions& o) {
     return r;
 }
 
+inline Result compare(const cli::CompareOptions& o) {
+    std::ostringstream out, err;
+    Result r;
+    r.code = cli::compare_command(o, out, err);
+    r.out = out.str();
+    r.err = err.str();
+    return r;
+}
+
 inline Result check(const cli::CheckOptions& o) {
     std::ostringstream out, err;
     Result r;

@@ -3,6 +3,8 @@
 // "common practice, no source" for all of them.
 #include <catch2/catch.hpp>
 
+#include "../support/temp_dir.hpp"
+
 #include <chrono>
 #include <filesystem>
 #include <fstream>
@@ -22,25 +24,7 @@ const std::string kTests = PLATEAU_TEST_DIR;
 const std::string kCases = kTests + "/diagnostics/cases/";
 const std::vector<std::string> kModelDirs{kTests + "/data/models"};
 
-struct TempDir {
-    fs::path path;
-    TempDir() {
-        path = fs::temp_directory_path() /
-               ("plateau-input-checks-" + std::to_string(std::chrono::steady_clock::now().time_since_epoch().count()));
-        fs::create_directories(path);
-    }
-    ~TempDir() {
-        std::error_code ec;
-        fs::remove_all(path, ec);
-    }
-    TempDir(const TempDir&) = delete;
-    TempDir& operator=(const TempDir&) = delete;
-    std::string write(const std::string& name, const std::string& text) const {
-        std::ofstream out(path / name, std::ios::binary);
-        out << text;
-        return (path / name).string();
-    }
-};
+using TempDir = plateau::test::TempDir;
 
 std::vector<Diagnostic> model_errors(const std::string& path) {
     try {

@@ -11,6 +11,8 @@
 
 #include <unistd.h>
 
+#include "../cli/cli_support.hpp"
+#include "../support/temp_dir.hpp"
 #include "cli/commands.hpp"
 #include "cli/evaluate.hpp"
 #include "report/compare.hpp"
@@ -27,22 +29,7 @@ inline std::vector<std::string> demo_regimens() {
             source_path("regimens/zelmarin-load-q8h-4h.toml"), source_path("regimens/zelmarin-continuous.toml")};
 }
 
-// A fresh directory for one test case, removed afterwards.
-struct TempDir {
-    fs::path path;
-    explicit TempDir(const std::string& name) {
-        path = fs::temp_directory_path() / ("plateau-test-report-" + std::to_string(::getpid()) + "-" + name);
-        fs::remove_all(path);
-        fs::create_directories(path);
-    }
-    ~TempDir() {
-        std::error_code ec;
-        fs::remove_all(path, ec);
-    }
-    TempDir(const TempDir&) = delete;
-    TempDir& operator=(const TempDir&) = delete;
-    std::string file(const std::string& name) const { return (path / name).string(); }
-};
+using TempDir = plateau::test::TempDir;
 
 // Sets (or, with nullptr, unsets) PLATEAU_GNUPLOT_PATH for a scope and restores what was there.
 struct GnuplotOverride {
@@ -82,28 +69,9 @@ inline void write_text(const std::string& path, const std::string& text) {
     out << text;
 }
 
-struct Result {
-    int code = -1;
-    std::string out, err;
-};
-
-inline Result compare(const cli::CompareOptions& o) {
-    std::ostringstream out, err;
-    Result r;
-    r.code = cli::compare_command(o, out, err);
-    r.out = out.str();
-    r.err = err.str();
-    return r;
-}
-
-inline Result run(const cli::RunOptions& o) {
-    std::ostringstream out, err;
-    Result r;
-    r.code = cli::run_command(o, out, err);
-    r.out = out.str();
-    r.err = err.str();
-    return r;
-}
+using clitest::Result;
+using clitest::compare;
+using clitest::run;
 
 // Compare options with a fixed date, so that the output does not change from day to day.
 inline cli::CompareOptions compare_options(const std::vector<std::string>& regimens) {

@@ -2,6 +2,8 @@
 // Unit factors are SI definitions ("common practice, no source"); dose times are computed by hand from the files.
 #include <catch2/catch.hpp>
 
+#include "../support/temp_dir.hpp"
+
 #include <chrono>
 #include <cstdlib>
 #include <filesystem>
@@ -21,25 +23,7 @@ const std::string kTests = PLATEAU_TEST_DIR;
 const std::string kModels = kTests + "/data/models";
 const std::string kRegimens = kTests + "/data/regimens";
 
-struct TempDir {
-    fs::path path;
-    TempDir() {
-        path = fs::temp_directory_path() /
-               ("plateau-input-unit-" + std::to_string(std::chrono::steady_clock::now().time_since_epoch().count()));
-        fs::create_directories(path);
-    }
-    ~TempDir() {
-        std::error_code ec;
-        fs::remove_all(path, ec);
-    }
-    TempDir(const TempDir&) = delete;
-    TempDir& operator=(const TempDir&) = delete;
-    std::string write(const std::string& name, const std::string& text) const {
-        std::ofstream out(path / name, std::ios::binary);
-        out << text;
-        return (path / name).string();
-    }
-};
+using TempDir = plateau::test::TempDir;
 
 // A regimen on the simple-oral fixture model with the given [[doses]] entries (and anything after them).
 plateau::regimen::Regimen regimen_with(const TempDir& tmp, const std::string& body) {
