@@ -455,6 +455,12 @@ std::string inline_svg(std::string svg, const std::string& title) {
     svg.erase(0, start);  // XML prolog, DOCTYPE, comments
     strip_namespaces(svg, 0);
     replace_all(svg, "xlink:href=", "href=");
+    // gnuplot names each plotted item "gnuplot_plot_N"; in a page that name would show as a tooltip.
+    for (std::size_t at = svg.find("<title>gnuplot_plot_"); at != std::string::npos; at = svg.find("<title>gnuplot_plot_", at)) {
+        const std::size_t end = svg.find("</title>", at);
+        if (end == std::string::npos) break;
+        svg.erase(at, end + 8 - at);
+    }
     replace_all(svg, "<title>Gnuplot</title>", title.empty() ? "" : "<title>" + xml_escape(title) + "</title>");
     const std::string p = id_prefix(svg);
     replace_attr(svg, "id='", "id='" + p);
