@@ -174,16 +174,6 @@ std::vector<std::string> summary_sentences(const std::vector<Candidate>& cs) {
     for (std::size_t i = 1; i < cs.size(); ++i) {
         const Figures b = figures_of(cs[i]);
         const std::string B = cs[i].letter;
-        if (a.first_reached && b.first_reached) {
-            const double d = *a.first_reached - *b.first_reached;
-            if (std::abs(d) >= 0.05)
-                out.push_back(B + " reaches the threshold " + num(std::abs(d), 2) + " h " +
-                              (d > 0 ? "sooner" : "later") + " than " + A + ".");
-        } else if (a.first_reached && !b.first_reached && b.above_day1_hours) {
-            out.push_back(B + " never reaches the threshold; " + A + " does at " + num(*a.first_reached, 3) + " h.");
-        } else if (!a.first_reached && b.first_reached && a.above_day1_hours) {
-            out.push_back(B + " reaches the threshold at " + num(*b.first_reached, 3) + " h; " + A + " never does.");
-        }
         if (a.above_ss_fraction && b.above_ss_fraction && std::abs(*a.above_ss_fraction - *b.above_ss_fraction) >= 0.01)
             out.push_back(B + " is above the threshold for " + percent(*b.above_ss_fraction) +
                           " of each interval at steady state, against " + percent(*a.above_ss_fraction) + " for " + A + ".");
@@ -200,6 +190,17 @@ std::vector<std::string> summary_sentences(const std::vector<Candidate>& cs) {
                 out.push_back("Same daily dose: " + B + "'s steady-state peak is " + num(*b.ss_peak / *a.ss_peak, 3) +
                               " times " + A + "'s, its trough " + num(*b.ss_trough / std::max(*a.ss_trough, 1e-300), 3) +
                               " times.");
+        }
+        // How fast the threshold is first reached comes last: it matters less than the steady state.
+        if (a.first_reached && b.first_reached) {
+            const double d = *a.first_reached - *b.first_reached;
+            if (std::abs(d) >= 0.05)
+                out.push_back(B + " reaches the threshold " + num(std::abs(d), 2) + " h " +
+                              (d > 0 ? "sooner" : "later") + " than " + A + ".");
+        } else if (a.first_reached && !b.first_reached && b.above_day1_hours) {
+            out.push_back(B + " never reaches the threshold; " + A + " does at " + num(*a.first_reached, 3) + " h.");
+        } else if (!a.first_reached && b.first_reached && a.above_day1_hours) {
+            out.push_back(B + " reaches the threshold at " + num(*b.first_reached, 3) + " h; " + A + " never does.");
         }
         if (!b.no_steady_state.empty()) out.push_back(B + " has no steady state: " + b.no_steady_state + ".");
     }
