@@ -290,3 +290,42 @@ TEST_CASE("cli: run reports a numerical failure with its time and exit code 2", 
     CHECK(t > 0.0);
     CHECK(t < 0.72);
 }
+
+TEST_CASE("cli: run refuses outputs that would overwrite an input or each other", "[cli]") {
+    const auto dir = temp_dir();
+    const std::string copy = (dir / "copy-of-regimen.toml").string();
+    std::filesystem::copy_file(data_path("bolus-single.toml"), copy, std::filesystem::copy_options::overwrite_existing);
+    cli::RunOptions o;
+    o.regimen = copy;
+    o.json = copy;
+    Result r = run(o);
+    CHECK(r.code == cli::kExitBadInput);
+    CHECK(contains(r.err, "is an input file; it would be overwritten"));
+    o.json = (dir / "same.out").string();
+    o.report = o.json;
+    r = run(o);
+    CHECK(r.code == cli::kExitBadInput);
+    CHECK(contains(r.err, "--report and --json name the same file"));
+    CHECK_FALSE(std::filesystem::exists(o.json));  // nothing was written
+}
+
+TEST_CASE("cli: run names a model file given where a regimen is expected, and checks --output", "[cli]") {
+    cli::RunOptions o;
+    o.regimen = std::string(PLATEAU_SOURCE_DIR) + "/models/one-compartment-iv.toml";
+    Result r = run(o);
+    CHECK(r.code == cli::kExitBadInput);
+    CHECK(contains(r.err, "is a model file; expected a regimen file"));
+
+    o = opts("bolus-single.toml");
+    o.targets.output = "nope";
+    r = run(o);
+    CHECK(r.code == cli::kExitBadInput);
+    CHECK(contains(r.err, "--output: model 'one-compartment-iv' has no output 'nope'; expected one of: conc, free"));
+
+    // The free output is fu = 0.9 times the total: its peak after 100 mg into 10 L is 9 mg/L (computed from the
+    // closed form), printed to 6 significant digits.
+    o.targets.output = "free";
+    r = run(o);
+    REQUIRE(r.code == cli::kExitOk);
+    CHECK(number_after(r.out, "Peak") == Approx(9.0).epsilon(1e-5));
+}
