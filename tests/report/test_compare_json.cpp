@@ -184,3 +184,23 @@ TEST_CASE("report: --auc windows appear in the comparison table with the JSON va
     const double a = json::number(json::at(all, "regimens/1"), "auc_windows/1/value");
     CHECK(a == Approx(300.0).epsilon(0.01));
 }
+
+TEST_CASE("report: a comparison judges every regimen against one set of targets", "[report]") {
+    TempDir dir("one-target-set");
+    const std::string body = "model = \"one-compartment-iv\"\n[[doses]]\nroute = \"iv\"\namount = \"100 mg\"\n"
+                             "every = \"12 h\"\ncount = 10\n[targets]\n";
+    const std::string a = dir.write("a.toml", "id = \"a\"\n" + body + "above = \"2 mg/L\"\n");
+    const std::string b = dir.write("b.toml", "id = \"b\"\n" + body + "above = \"3 mg/L\"\n");
+    cli::CompareOptions o = compare_options({a, b});
+    o.json = dir.file("c.json");
+    const Result r = compare(o);
+    REQUIRE(r.code == cli::kExitOk);
+    CHECK(r.out.find("Targets: threshold 2 mg/L") != std::string::npos);
+    CHECK(r.out.find("Note: B's file sets other targets than the ones compared here") != std::string::npos);
+    // Both regimens are the same, so both get the same verdict and the same figures against 2 mg/L.
+    const json::Value all = json::parse(slurp(o.json));
+    CHECK(json::number(json::at(all, "regimens/0"), "above/threshold") == 2.0);
+    CHECK(json::number(json::at(all, "regimens/1"), "above/threshold") == 2.0);
+    CHECK(json::number(json::at(all, "regimens/1"), "steady_state/above_fraction") ==
+          json::number(json::at(all, "regimens/0"), "steady_state/above_fraction"));
+}
