@@ -3,6 +3,8 @@
 // there and still exits normally with an empty output file.
 #include "plot/plot.hpp"
 
+#include "core/escape.hpp"
+
 #include <gnuplot-iostream.h>
 
 #include <fcntl.h>
@@ -422,20 +424,6 @@ void strip_namespaces(std::string& s, std::size_t tag) {
         at = from;
     }
     s.replace(tag, end - tag, head);
-}
-
-std::string xml_escape(const std::string& t) {
-    std::string out;
-    for (char c : t) {
-        switch (c) {
-        case '&': out += "&amp;"; break;
-        case '<': out += "&lt;"; break;
-        case '>': out += "&gt;"; break;
-        case '"': out += "&quot;"; break;
-        default: out += c;
-        }
-    }
-    return out;
 }
 
 std::string id_prefix(const std::string& text) {

@@ -4,6 +4,7 @@
 #include <cmath>
 #include <optional>
 
+#include "core/escape.hpp"
 #include "plot/plot.hpp"
 #include "plot/sample.hpp"
 #include "report/caution.hpp"
@@ -13,19 +14,7 @@ namespace plateau::report {
 
 namespace {
 
-std::string esc(std::string_view s) {
-    std::string o;
-    for (char c : s) {
-        switch (c) {
-            case '&': o += "&amp;"; break;
-            case '<': o += "&lt;"; break;
-            case '>': o += "&gt;"; break;
-            case '"': o += "&quot;"; break;
-            default: o += c;
-        }
-    }
-    return o;
-}
+std::string esc(std::string_view s) { return xml_escape(s); }
 
 const model::Output& output_of(const Candidate& c) {
     return c.regimen.model.outputs[static_cast<std::size_t>(c.exposure.output)];

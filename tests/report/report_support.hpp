@@ -14,6 +14,7 @@
 #include "../cli/cli_support.hpp"
 #include "../support/temp_dir.hpp"
 #include "cli/commands.hpp"
+#include "core/escape.hpp"
 #include "cli/evaluate.hpp"
 #include "report/compare.hpp"
 
@@ -105,18 +106,6 @@ inline std::size_t count_of(const std::string& text, const std::string& part) {
     return n;
 }
 
-inline std::string html_escape(const std::string& s) {
-    std::string o;
-    for (char c : s) {
-        switch (c) {
-            case '&': o += "&amp;"; break;
-            case '<': o += "&lt;"; break;
-            case '>': o += "&gt;"; break;
-            case '"': o += "&quot;"; break;
-            default: o += c;
-        }
-    }
-    return o;
-}
+inline std::string html_escape(const std::string& s) { return xml_escape(s); }
 
 }  // namespace plateau::reporttest
