@@ -90,6 +90,9 @@ int run_command(const RunOptions& opt, std::ostream& out, std::ostream& err) {
         check_outputs(opt.json, opt.report, opt.plot, {opt.regimen}, opt.csv);
         regimen::Regimen r = load(opt.regimen, opt.model_dirs, opt.targets);
         print_warnings(r, err);
+        if (opt.clock && !r.start_clock)
+            throw UsageError("--clock needs the clock time at t = 0: add start_clock = \"08:00\" at the top of " +
+                             quoted(opt.regimen));
         const double horizon = r.horizon.until;
         if (!opt.csv.empty()) {
             if (has_times) {
@@ -136,6 +139,7 @@ int run_command(const RunOptions& opt, std::ostream& out, std::ostream& err) {
         summary << '\n';
         report::TextOptions to;
         to.all_intervals = opt.all_intervals;
+        if (opt.clock) to.clock = c.regimen.start_clock;
         report::write_exposure_text(summary, c.regimen, c.sim, c.exposure, to);
         if (!written.str().empty()) summary << '\n' << written.str();
         summary << '\n' << wrap_text(report::kCaution, 0, 0, kWidth) << '\n';
