@@ -432,7 +432,7 @@ regimen::Regimen load_regimen(const std::string& path, const std::vector<std::st
     using namespace detail;
     Document doc = read_document(path);
     DiagnosticSink sink;
-    hoist_misplaced_keys(doc, sink, {"id", "model", "about"});
+    hoist_misplaced_keys(doc, sink, {"id", "model", "about", "start_clock"});
     Ctx c{doc, sink};
     regimen::Regimen r;
     r.path = path;

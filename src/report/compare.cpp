@@ -183,7 +183,7 @@ std::vector<TargetCheck> target_checks(const std::vector<Candidate>& cs) {
 
 namespace {
 
-// The share of the compared doses (the repeating pattern's, else all) that reaches the circulation, by each
+// The share of the compared doses (the repeating cycle's, else all) that reaches the circulation, by each
 // route's fraction with the regimen's parameter values, and the routes as words ("oral, 60 %").
 struct Uptake {
     double fraction = 1.0;
@@ -194,8 +194,7 @@ struct Uptake {
 Uptake uptake_of(const Candidate& c) {
     const model::Model& m = c.regimen.model;
     const std::vector<double> values = c.regimen.parameter_values();
-    std::vector<sim::Dose> doses = c.sim.doses;
-    if (auto p = metrics::final_period(c.regimen)) doses = p->doses;
+    const std::vector<sim::Dose>& doses = c.schedule.cycle ? c.schedule.cycle->doses : c.schedule.doses;
     double given = 0.0, reached = 0.0;
     std::vector<int> seen;
     Uptake u;
