@@ -25,7 +25,7 @@ void print_run_summary(std::ostream& out, const regimen::Regimen& r, const sim::
     const model::Model& m = r.model;
     labelled(out, "Regimen", r.id + " (" + r.path + ")");
     if (!r.about.empty()) labelled(out, "", r.about);
-    labelled(out, "Model", m.id + ": " + m.summary);
+    labelled(out, "Model", m.id + " (" + m.path + "): " + m.summary);
     if (!r.overrides.empty()) {
         std::vector<std::string> parts;
         for (const auto& o : r.overrides) {

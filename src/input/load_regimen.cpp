@@ -83,7 +83,7 @@ DoseEntry parse_dose(Ctx& c, const Value& t, int number, const model::Model* m, 
         if (m != nullptr) {
             d.spec.route_index = m->route_index(route->str);
             if (d.spec.route_index < 0) {
-                c.value_error(*route, "unknown route '" + route->str + "'",
+                c.value_error(*route, "unknown route '" + route->str + "'" + did_you_mean(route->str, routes),
                               routes.empty() ? "a route, but the model defines none in [routes]" : one_of(routes));
                 ok = false;
             }
@@ -219,7 +219,7 @@ void load_overrides(Ctx& c, const Value& table, const model::Model& m, regimen::
     for (const Entry& e : table.entries) {
         int idx = m.parameter_index(e.key);
         if (idx < 0) {
-            c.error(e.key_pos, "unknown parameter '" + e.key + "' in model '" + m.id + "'", one_of(names),
+            c.error(e.key_pos, "unknown parameter '" + e.key + "' in model '" + m.id + "'" + did_you_mean(e.key, names), one_of(names),
                     static_cast<int>(e.key.size()));
             continue;
         }
@@ -285,7 +285,7 @@ void load_targets(Ctx& c, const Value* t, const model::Model& m, regimen::Target
     if (t != nullptr) {
         if (const Value* o = get_string(c, *t, "output", false, "[targets]", "output = \"<output name>\"")) {
             idx = m.output_index(o->str);
-            if (idx < 0) c.value_error(*o, "unknown output '" + o->str + "' in model '" + m.id + "'", one_of(names));
+            if (idx < 0) c.value_error(*o, "unknown output '" + o->str + "' in model '" + m.id + "'" + did_you_mean(o->str, names), one_of(names));
         }
     }
     if (idx < 0) return;
@@ -491,6 +491,7 @@ regimen::Regimen load_regimen(const std::string& path, const std::vector<std::st
     using namespace detail;
     Document doc = read_document(path);
     DiagnosticSink sink;
+    hoist_misplaced_keys(doc, sink, {"id", "model", "about", "start_clock"});
     Ctx c{doc, sink};
     regimen::Regimen r;
     r.path = path;

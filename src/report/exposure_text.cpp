@@ -70,8 +70,9 @@ void write_exposure_text(std::ostream& out, const regimen::Regimen& r, const sim
         if (opt.clock) out << pad_left("starts", 13);
         out << '\n';
         auto line = [&](const metrics::Interval& iv) {
-            out << "  " << pad_left(num(iv.start, 8), wcol) << pad_left(num(iv.end, 8), wcol)
-                << pad_left(num(in_output_unit(o, iv.peak.value)), wcol) << pad_left(num(iv.peak.time, 8), wcol)
+            // Times with the 6 significant digits of every other time in this report (to 0.001 h below 1000 h).
+            out << "  " << pad_left(num(iv.start, 6), wcol) << pad_left(num(iv.end, 6), wcol)
+                << pad_left(num(in_output_unit(o, iv.peak.value)), wcol) << pad_left(num(iv.peak.time, 6), wcol)
                 << pad_left(num(in_output_unit(o, iv.trough)), wcol)
                 << pad_left(num(in_output_unit(o, iv.minimum.value)), wcol)
                 << pad_left(num(in_output_unit(o, iv.auc), 5), wcol);
