@@ -338,12 +338,23 @@ void load_horizon(Ctx& c, const Value* t, regimen::Horizon& out, const Value*& u
 void check_schedule(Ctx& c, const std::vector<DoseEntry>& doses, regimen::Horizon& h, const Value* until_v,
                     const Value* step_v, const Value& root) {
     long long total = 0;
+    double mass = 0.0;
     for (const auto& d : doses) {
         total += d.spec.count;
         if (total > regimen::kMaxDoses) {
             c.error(d.spec.pos,
                     "too many doses: " + std::to_string(total) + " in [[doses]] entries 1 to " + std::to_string(d.number),
                     "at most " + std::to_string(regimen::kMaxDoses) + " doses in all [[doses]] entries");
+            return;
+        }
+        // Totals and times derived from the entries must stay finite numbers, or reports print "inf".
+        mass += d.spec.amount * static_cast<double>(d.spec.count);
+        const double last = d.spec.at + static_cast<double>(d.spec.count - 1) * d.spec.every + d.spec.over;
+        if (!std::isfinite(mass) || !std::isfinite(last)) {
+            c.error(d.spec.pos,
+                    std::string(std::isfinite(mass) ? "the last dose's time" : "the total amount") + " of [[doses]] entries 1 to " +
+                        std::to_string(d.number) + " is beyond what a double can hold",
+                    "amounts and times whose totals stay below 1e308 (mg, h)");
             return;
         }
     }
