@@ -378,10 +378,11 @@ void check_schedule(Ctx& c, const std::vector<DoseEntry>& doses, regimen::Horizo
         mass += d.spec.amount * static_cast<double>(d.spec.count);
         const double last = d.spec.at + static_cast<double>(d.spec.count - 1) * d.spec.every + d.spec.over;
         if (!std::isfinite(mass) || !std::isfinite(last)) {
-            c.error(d.spec.pos,
-                    std::string(std::isfinite(mass) ? "the last dose's time" : "the total amount") + " of [[doses]] entries 1 to " +
-                        std::to_string(d.number) + " is beyond what a double can hold",
-                    "amounts and times whose totals stay below 1e308 (mg, h)");
+            const std::string what = !std::isfinite(mass)           ? "the total amount of [[doses]] entries 1 to "
+                                     : !std::isfinite(d.spec.over) ? "the infusion length (amount / rate) of [[doses]] entry "
+                                                                   : "the last dose's end of [[doses]] entry ";
+            c.error(d.spec.pos, what + std::to_string(d.number) + " is beyond what a double can hold",
+                    "amounts, rates and times whose totals stay below 1e308 (mg, h)");
             return;
         }
     }

@@ -75,7 +75,11 @@ const Case kCases[] = {
     {"regimen-total-overflow.toml",
      "regimen-total-overflow.toml:5:1: error: the total amount of [[doses]] entries 1 to 1 is beyond what a double can "
      "hold",
-     "amounts and times whose totals stay below 1e308 (mg, h)"},
+     "amounts, rates and times whose totals stay below 1e308 (mg, h)"},
+    {"regimen-rate-underflow.toml",
+     "regimen-rate-underflow.toml:4:1: error: the infusion length (amount / rate) of [[doses]] entry 1 is beyond what "
+     "a double can hold",
+     "amounts, rates and times whose totals stay below 1e308 (mg, h)"},
 };
 
 // A one-compartment model whose rate and parameter w are given.
