@@ -89,6 +89,7 @@ int run_command(const RunOptions& opt, std::ostream& out, std::ostream& err) {
 
         check_outputs(opt.json, opt.report, opt.plot, {opt.regimen}, opt.csv);
         regimen::Regimen r = load(opt.regimen, opt.model_dirs, opt.targets);
+        check_outputs(opt.json, opt.report, opt.plot, {opt.regimen, r.model.path}, opt.csv);  // the model too
         print_warnings(r, err);
         if (opt.clock && !r.start_clock)
             throw UsageError("--clock needs the clock time at t = 0: add start_clock = \"08:00\" at the top of " +
@@ -123,17 +124,18 @@ int run_command(const RunOptions& opt, std::ostream& out, std::ostream& err) {
         if (opt.csv == "-" && opt.json == "-") throw UsageError("--csv - and --json - cannot both use standard output");
         std::ostream& summary = opt.csv == "-" || opt.json == "-" ? err : out;
         std::ostringstream written;  // "... written to ..." lines, shown before the closing caution
+        std::vector<ExtraFile> files;  // written with the other outputs, all or none
+        std::string csv_text;
         if (!opt.csv.empty()) {
             std::ostringstream csv;
             report::write_csv(csv, c.sim, c.regimen.model, times);
-            if (opt.csv == "-") {
-                out << csv.str();
-            } else {
-                write_file(opt.csv, csv.str(), "--csv");
-                written << "CSV       " << plural(times.size(), "row") << " written to " << opt.csv << '\n';
-            }
+            csv_text = csv.str();
+            if (opt.csv != "-")
+                files.push_back({opt.csv, csv_text, "--csv",
+                                 "CSV       " + plural(times.size(), "row") + " written to " + opt.csv});
         }
-        write_outputs(cs, opt.json, opt.report, opt.plot, opt.tol, written, out);
+        write_outputs(cs, opt.json, opt.report, opt.plot, opt.tol, written, out, true, {}, files);
+        if (opt.csv == "-") out << csv_text;
 
         print_run_summary(summary, c.regimen, c.sim, opt);
         summary << '\n';

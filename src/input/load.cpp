@@ -60,6 +60,13 @@ bool resolve_model(Ctx& c, const Value& ref, const std::vector<std::string>& mod
         return false;
     }
     const bool path_like = ends_with(name, ".toml") || name.find('/') != std::string::npos;
+    // Only model files are read: a path is refused unless it (and what a link points to) ends in .toml, so a
+    // regimen cannot make plateau read, and echo in a message, any other file (model = "/proc/self/environ").
+    if (path_like && !ends_with(name, ".toml")) {
+        c.value_error(ref, "the model path '" + name + "' does not name a .toml file",
+                      "a model id, or a path to a .toml file relative to this regimen");
+        return false;
+    }
     std::vector<fs::path> candidates;
     if (path_like) {
         fs::path p(name);
@@ -74,10 +81,31 @@ bool resolve_model(Ctx& c, const Value& ref, const std::vector<std::string>& mod
     }
     for (const auto& cand : candidates) {
         if (!is_file(cand)) continue;
+        std::error_code ec;
+        if (fs::canonical(cand, ec).extension() != ".toml" || ec) {
+            c.value_error(ref, "the model file '" + name + "' (" + cand.string() + ") links to a file that is not a .toml file",
+                          "a model file ending in .toml");
+            return false;
+        }
         try {
             out = load_model(cand.string());
             return true;
         } catch (const InputError& e) {
+            // The model's own errors are shown with its source lines only if the file is a model at all;
+            // otherwise one line here says what it is, and nothing of its content is echoed.
+            std::string kind, parse_problem;
+            try {
+                kind = file_kind(cand.string());
+            } catch (const InputError& bad) {
+                const Diagnostic& d = bad.diagnostics().front();
+                parse_problem = d.message + " at line " + std::to_string(d.pos.line) + ", column " + std::to_string(d.pos.col);
+            }
+            if (kind != "model") {
+                c.value_error(ref, "'" + name + "' (" + cand.string() + ") is not a model file: " +
+                                       (parse_problem.empty() ? std::string("it has no [compartments]") : parse_problem),
+                              "a model file with [parameters], [compartments], [rates], [outputs] and [routes]");
+                return false;
+            }
             for (const auto& d : e.diagnostics()) c.sink.add(d);
             c.value_error(ref, "the model '" + name + "' (" + cand.string() + ") has errors", "a model file without errors");
             return false;

@@ -382,12 +382,24 @@ std::vector<double> entry_lags(const std::vector<DoseEntry>& doses, const model:
 void check_schedule(Ctx& c, const std::vector<DoseEntry>& doses, const std::vector<double>& lags, regimen::Horizon& h,
                     const Value* until_v, const Value* step_v, const Value& root, std::vector<regimen::Warning>& warnings) {
     long long total = 0;
+    double mass = 0.0;
     for (const auto& d : doses) {
         total += d.spec.doses();
         if (total > regimen::kMaxDoses) {
             c.error(d.spec.pos,
                     "too many doses: " + std::to_string(total) + " in [[doses]] entries 1 to " + std::to_string(d.number),
                     "at most " + std::to_string(regimen::kMaxDoses) + " doses in all [[doses]] entries");
+            return;
+        }
+        // Totals and times derived from the entries must stay finite numbers, or reports print "inf".
+        mass += d.spec.amount * static_cast<double>(d.spec.count);
+        const double last = d.spec.at + static_cast<double>(d.spec.count - 1) * d.spec.every + d.spec.over;
+        if (!std::isfinite(mass) || !std::isfinite(last)) {
+            const std::string what = !std::isfinite(mass)           ? "the total amount of [[doses]] entries 1 to "
+                                     : !std::isfinite(d.spec.over) ? "the infusion length (amount / rate) of [[doses]] entry "
+                                                                   : "the last dose's end of [[doses]] entry ";
+            c.error(d.spec.pos, what + std::to_string(d.number) + " is beyond what a double can hold",
+                    "amounts, rates and times whose totals stay below 1e308 (mg, h)");
             return;
         }
     }
