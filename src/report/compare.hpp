@@ -9,6 +9,7 @@
 
 #include "metrics/exposure.hpp"
 #include "regimen/regimen.hpp"
+#include "sim/schedule.hpp"
 #include "sim/simulate.hpp"
 
 namespace plateau::report {
@@ -16,6 +17,7 @@ namespace plateau::report {
 // One simulated and measured regimen.
 struct Candidate {
     regimen::Regimen regimen;
+    sim::Schedule schedule;       // the regimen's time structure (doses, intervals, cycle)
     sim::Simulation sim;
     metrics::Exposure exposure;
     std::string letter;   // "A", "B", ...
@@ -32,6 +34,8 @@ struct Figures {
     double auc24_day1 = 0.0;
     std::optional<double> auc24_ss;
     std::optional<double> above_day1_hours;        // threshold set
+    std::optional<double> above_worst_day_hours;   // threshold set: the full 24-h day with the least time above
+    int above_worst_day = 0;                       // ... its number (1-based)
     std::optional<double> above_ss_fraction;       // threshold set and steady state found
     std::optional<double> window_ss_fraction;      // window set and steady state found
     std::optional<double> above_window_ss_fraction;

@@ -4,6 +4,9 @@
 #include <cmath>
 #include <limits>
 
+#include "regimen/time.hpp"
+#include "sim/schedule.hpp"
+
 namespace plateau::sim {
 
 taylor::Tape model_tape(const model::Model& m) {
@@ -99,7 +102,7 @@ Simulation integrate_events(const model::Model& m, taylor::Stepper& stepper, con
     std::size_t next = 0;
     while (true) {
         // Apply every event due now (events before 0 are applied at 0).
-        while (next < events.size() && events[next].time <= t + 1e-9 * std::max(1.0, std::abs(t))) {
+        while (next < events.size() && !regimen::before(t, events[next].time)) {
             for (std::size_t c = 0; c < nc; ++c) {
                 x[c] += events[next].bolus[c];
                 u[c] += events[next].rate_change[c];
@@ -182,7 +185,7 @@ std::vector<double> final_state(const Simulation& sim) {
 }
 
 Simulation simulate(const regimen::Regimen& r, const Options& opt) {
-    return simulate(r.model, r.parameter_values(), expand_doses(r), r.horizon.until, opt);
+    return simulate(r.model, r.parameter_values(), make_schedule(r).doses, r.horizon.until, opt);
 }
 
 }  // namespace plateau::sim
