@@ -59,6 +59,32 @@ void require(Ctx& c, Field& f, bool good, const std::string& message, const std:
     f.ok = false;
 }
 
+// `amount`: a mass ("500 mg"), or a mass per kg of body weight ("15 mg/kg") or per m² of body-surface area
+// ("75 mg/m2"), resolved against the patient once the whole file is read.
+Field amount_field(Ctx& c, const Value& t, regimen::DoseSpec& spec) {
+    const Entry* e = t.find("amount");
+    if (e == nullptr || e->value.kind != Kind::String) return field(c, t, "amount", kMass, "250 mg");
+    const std::string& text = e->value.str;
+    for (const auto& [tail, per] : {std::pair<std::string, regimen::Per>{"/kg", regimen::Per::Kg},
+                                    {"/m2", regimen::Per::M2}, {"/m\xC2\xB2", regimen::Per::M2}}) {
+        if (text.size() <= tail.size() || text.compare(text.size() - tail.size(), tail.size(), tail) != 0) continue;
+        Field f;
+        f.present = true;
+        f.v = &e->value;
+        try {
+            f.value = units::parse_quantity(std::string_view(text).substr(0, text.size() - tail.size()), kMass).value;
+            f.ok = true;
+            spec.per = per;
+            spec.per_amount = f.value;
+        } catch (const TextError&) {
+            c.value_error(e->value, "cannot read the amount '" + text + "'",
+                          "a mass per body size, like \"15 mg/kg\" or \"75 mg/m2\"");
+        }
+        return f;
+    }
+    return field(c, t, "amount", kMass, "250 mg");
+}
+
 DoseEntry parse_dose(Ctx& c, const Value& t, int number, const model::Model* m) {
     DoseEntry d;
     d.number = number;
@@ -88,7 +114,7 @@ DoseEntry parse_dose(Ctx& c, const Value& t, int number, const model::Model* m) 
         ok = false;
     }
 
-    Field amount = field(c, t, "amount", kMass, "250 mg");
+    Field amount = amount_field(c, t, d.spec);
     Field at = field(c, t, "at", kTime, "0 h");
     Field every = field(c, t, "every", kTime, "8 h");
     Field until = field(c, t, "until", kTime, "7 d");
@@ -196,6 +222,13 @@ void load_overrides(Ctx& c, const Value& table, const model::Model& m, regimen::
             continue;
         }
         const model::Parameter& p = m.parameters[static_cast<std::size_t>(idx)];
+        if (p.kind != model::ParamKind::Fixed) {
+            c.error(e.key_pos, "'" + e.key + "' is a " + (p.kind == model::ParamKind::Covariate ? "covariate" : "derived parameter") +
+                                   " of model '" + m.id + "'",
+                    p.kind == model::ParamKind::Covariate ? "its value in [patient]" : "values for its inputs instead",
+                    static_cast<int>(e.key.size()));
+            continue;
+        }
         std::string example = fmt(units::to_unit(p.value, p.unit));
         if (!p.unit_text.empty()) example += " " + p.unit_text;
         auto q = quantity(c, e.value, e.key, p.dim, example, p.dim.dimensionless());
@@ -414,7 +447,7 @@ regimen::Regimen load_regimen(const std::string& path, const std::vector<std::st
         c.error(root.pos, "empty file: no regimen in it", "a regimen file with id, model and [[doses]]");
         sink.throw_if_any();
     }
-    check_keys(c, root, {"id", "model", "about", "parameters", "doses", "targets", "horizon"}, "a regimen file");
+    check_keys(c, root, {"id", "model", "about", "parameters", "patient", "doses", "targets", "horizon"}, "a regimen file");
     if (const Value* id = get_string(c, root, "id", true, "the regimen file", "id = \"<regimen name>\"")) {
         if (id->str.empty()) c.value_error(*id, "the regimen id is empty", "a name, like \"q8h-1g\"");
         r.id = id->str;
@@ -434,6 +467,9 @@ regimen::Regimen load_regimen(const std::string& path, const std::vector<std::st
         std::vector<const Value*> values;
         if (m != nullptr) load_overrides(c, *p, *m, r, values);
     }
+
+    const Value* patient = get_table(c, root, "patient", false, "the regimen file", "[patient] with lines like wt = \"82 kg\"");
+    if (patient != nullptr && m != nullptr) load_patient(c, *patient, *m, r);
 
     std::vector<DoseEntry> doses;
     bool doses_ok = true;
@@ -476,6 +512,7 @@ regimen::Regimen load_regimen(const std::string& path, const std::vector<std::st
 
     if (doses_ok && horizon_ok) check_schedule(c, doses, r.horizon, until_v, step_v, root);
     for (auto& d : doses) r.doses.push_back(d.spec);
+    if (doses_ok && m != nullptr) resolve_per_size(c, r);
 
     throw_sorted(sink, path);
     return r;
