@@ -87,11 +87,25 @@ struct ModelsOptions {
     std::vector<std::string> model_dirs;
 };
 
+struct DoseOptions {
+    std::string regimen;                  // the template: model, route, targets, one repeating series
+    double tol = 1e-10;
+    TargetOverrides targets;              // as in run; --auc24 may be one value (hit exactly)
+    std::string intervals;                // "6h,8h,12h" (default: the template's interval)
+    std::string over;                     // "0.5h,4h", 0 = bolus (default: the template's infusion length)
+    std::string round;                    // "250mg": doses rounded up to multiples of it
+    bool loading = false;                 // also the loading dose
+    std::string json;                     // "" none, "-" standard output, else a file
+    std::string write;                    // the recommended regimen as a regimen file
+    std::vector<std::string> model_dirs;
+};
+
 int run_command(const RunOptions& opt, std::ostream& out, std::ostream& err);
 int compare_command(const CompareOptions& opt, std::ostream& out, std::ostream& err);
 int population_command(const PopulationOptions& opt, std::ostream& out, std::ostream& err);
 int check_command(const CheckOptions& opt, std::ostream& out, std::ostream& err);
 int models_command(const ModelsOptions& opt, std::ostream& out, std::ostream& err);
+int dose_command(const DoseOptions& opt, std::ostream& out, std::ostream& err);
 
 // Validators shared with main.cpp: "" when the text is acceptable, else a one-line message without the option
 // name ("expected a number from 1e-15 to 1e-3, got 'abc'"). duration_problem also refuses times <= 0.

@@ -3,6 +3,8 @@
 #include "cli/commands.hpp"
 #include "cli/support.hpp"
 #include "input/load.hpp"
+#include "regimen/time.hpp"
+#include "sim/steady_state.hpp"
 #include "units/units.hpp"
 
 namespace plateau::cli {
@@ -111,10 +113,11 @@ report::Candidate evaluate(regimen::Regimen r, const sim::Options& opt,
     c.regimen = std::move(r);
     const std::string& path = c.regimen.path;
     for (const auto& [a, b] : auc_windows)
-        if (b > c.regimen.horizon.until + 1e-9)
+        if (regimen::before(c.regimen.horizon.until, b))
             throw UsageError("--auc: the window " + num(a) + " h .. " + num(b) + " h of " + quoted(path) +
                              " ends after the horizon (" + hours(c.regimen.horizon.until) + ")");
-    c.sim = sim::simulate(c.regimen, opt);
+    c.schedule = sim::make_schedule(c.regimen);
+    c.sim = sim::simulate(c.regimen.model, c.regimen.parameter_values(), c.schedule.doses, c.schedule.end, opt);
     if (c.sim.outcome != taylor::Outcome::Ok) {
         std::string msg = "numerical failure at t = " + num(c.sim.failed_at) + " h (" +
                           taylor::outcome_name(c.sim.outcome) + ") after " +
@@ -133,7 +136,8 @@ report::Candidate evaluate(regimen::Regimen r, const sim::Options& opt,
     }
     metrics::Request req = metrics::request_from(c.regimen, opt);
     req.auc_windows = auc_windows;
-    c.exposure = metrics::compute(c.regimen, c.sim, req);
+    const auto steady = sim::steady_state(c.regimen.model, c.regimen.parameter_values(), c.schedule, c.sim, opt);
+    c.exposure = metrics::compute(c.schedule, c.sim, steady, req);
     return c;
 }
 

@@ -148,6 +148,29 @@ int main(int argc, char** argv) {
     add_model_dirs(models, models_opt.model_dirs);
     models->footer(footer("  plateau models\n  plateau models two-compartment-iv --models ./my-models"));
 
+    cli::DoseOptions dose_opt;
+    CLI::App* dose = app.add_subcommand("dose", "Find the dose per interval and infusion length that meets the targets");
+    dose->add_option("regimen", dose_opt.regimen, "Template regimen file (.toml) with one repeating series")
+        ->required()
+        ->type_name("REGIMEN");
+    dose->add_option("--intervals", dose_opt.intervals, "Candidate intervals, e.g. 6h,8h,12h,24h")->type_name("LIST");
+    dose->add_option("--over", dose_opt.over, "Candidate infusion lengths, e.g. 0.5h,3h,4h (0: bolus)")->type_name("LIST");
+    dose->add_option("--round", dose_opt.round, "Round doses up to a multiple of this amount, e.g. 250mg")
+        ->type_name("AMOUNT");
+    dose->add_flag("--loading", dose_opt.loading, "Also the loading dose that starts at the steady-state trough");
+    dose->add_option("--write", dose_opt.write, "Write the recommended regimen as a regimen file")->type_name("FILE.toml");
+    dose->add_option("--json", dose_opt.json, "Write every candidate as JSON to FILE ('-': standard output)")
+        ->type_name("FILE");
+    dose->add_option("--tol", dose_opt.tol, "Integration tolerance, 1e-15 to 1e-3 (default 1e-10)")
+        ->check(tolerance_validator())
+        ->type_name("TOL");
+    add_targets(dose, dose_opt.targets);
+    add_model_dirs(dose, dose_opt.model_dirs);
+    dose->footer(footer("  plateau dose regimens/zelmarin-q8h-4h.toml --round 250mg\n"
+                        "  plateau dose my-regimen.toml --intervals 6h,8h,12h --over 0.5h,4h --above 4mg/L --loading\n"
+                        "  plateau dose my-regimen.toml --auc24 400 --round 250mg --write found.toml\n"
+                        "--auc24 with one value asks for that AUC24 exactly; a range asks for a dose inside it."));
+
     try {
         app.parse(argc, argv);
     } catch (const CLI::ParseError& e) {
@@ -158,7 +181,7 @@ int main(int argc, char** argv) {
         if (app.get_subcommands().empty()) {
             // No command was recognised: say which ones there are, in our words.
             what = argc > 1 && argv[1][0] != '-' ? "unknown command '" + std::string(argv[1]) + "'" : "no command given";
-            what += "; expected one of: run, compare, population, check, models";
+            what += "; expected one of: run, compare, population, check, models, dose";
         }
         std::cerr << "error: " << what << "\n(run '" << where << " --help' for usage)\n";
         return cli::kExitBadInput;
@@ -179,6 +202,7 @@ int main(int argc, char** argv) {
         if (*pop) return cli::population_command(pop_opt, std::cout, std::cerr);
         if (*check) return cli::check_command(check_opt, std::cout, std::cerr);
         if (*models) return cli::models_command(models_opt, std::cout, std::cerr);
+        if (*dose) return cli::dose_command(dose_opt, std::cout, std::cerr);
     } catch (const std::exception& e) {
         std::cerr << "internal error: " << e.what() << '\n';
         return cli::kExitInternal;

@@ -87,14 +87,14 @@ void load_patient(Ctx& c, const Value& table, const model::Model& m, regimen::Re
 void resolve_per_size(Ctx& c, regimen::Regimen& r) {
     const regimen::BodySize b = r.body_size();
     for (auto& d : r.doses) {
-        if (d.per == regimen::Per::None) continue;
+        if (d.per_size == regimen::Per::None) continue;
         if (!(b.weight_kg > 0.0)) {
-            c.error(d.pos, "an amount per " + std::string(d.per == regimen::Per::Kg ? "kg" : "m2") +
+            c.error(d.pos, "an amount per " + std::string(d.per_size == regimen::Per::Kg ? "kg" : "m2") +
                                " needs the patient's weight",
                     "[patient] wt = \"70 kg\" (or a model with a covariate wt)");
             continue;
         }
-        if (d.per == regimen::Per::M2 && !(b.height_cm > 0.0)) {
+        if (d.per_size == regimen::Per::M2 && !(b.height_cm > 0.0)) {
             c.error(d.pos, "an amount per m2 needs the patient's height for the body-surface area (Mosteller)",
                     "[patient] ht = \"170 cm\"");
             continue;

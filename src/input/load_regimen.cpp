@@ -2,8 +2,10 @@
 #include <algorithm>
 #include <cmath>
 
+#include "input/clock.hpp"
 #include "input/load.hpp"
 #include "input/loaders.hpp"
+#include "regimen/time.hpp"
 
 namespace plateau::input {
 
@@ -15,7 +17,8 @@ using units::kAmountRate;
 using units::kMass;
 using units::kTime;
 
-const std::vector<std::string> kDoseKeys{"route", "amount", "at", "every", "count", "until", "over", "rate"};
+const std::vector<std::string> kDoseKeys{"route",   "amount", "at",     "every", "count", "until",  "over",
+                                         "rate",    "times",  "days",   "missed", "late", "doubled"};
 
 struct DoseEntry {
     regimen::DoseSpec spec;
@@ -74,7 +77,7 @@ Field amount_field(Ctx& c, const Value& t, regimen::DoseSpec& spec) {
         try {
             f.value = units::parse_quantity(std::string_view(text).substr(0, text.size() - tail.size()), kMass).value;
             f.ok = true;
-            spec.per = per;
+            spec.per_size = per;
             spec.per_amount = f.value;
         } catch (const TextError&) {
             c.value_error(e->value, "cannot read the amount '" + text + "'",
@@ -85,7 +88,7 @@ Field amount_field(Ctx& c, const Value& t, regimen::DoseSpec& spec) {
     return field(c, t, "amount", kMass, "250 mg");
 }
 
-DoseEntry parse_dose(Ctx& c, const Value& t, int number, const model::Model* m) {
+DoseEntry parse_dose(Ctx& c, const Value& t, int number, const model::Model* m, const std::optional<double>& start_clock) {
     DoseEntry d;
     d.number = number;
     d.spec.pos = t.pos;
@@ -115,7 +118,22 @@ DoseEntry parse_dose(Ctx& c, const Value& t, int number, const model::Model* m) 
     }
 
     Field amount = amount_field(c, t, d.spec);
-    Field at = field(c, t, "at", kTime, "0 h");
+    // `at` may be a clock time ("14:00", "day 2 08:00") when the file states the clock time at t = 0.
+    Field at;
+    const Entry* at_e = t.find("at");
+    if (at_e != nullptr && at_e->value.kind == Kind::String && looks_like_clock(at_e->value.str)) {
+        at.present = true;
+        at.v = &at_e->value;
+        if (!start_clock) {
+            c.value_error(at_e->value, "'at' is a clock time, but the file does not say the clock time at t = 0",
+                          start_clock_hint());
+        } else if (auto ct = clock_time(c, at_e->value, "at", true)) {
+            at.ok = true;
+            at.value = hours_from_start(*ct, *start_clock);
+        }
+    } else {
+        at = field(c, t, "at", kTime, "0 h");
+    }
     Field every = field(c, t, "every", kTime, "8 h");
     Field until = field(c, t, "until", kTime, "7 d");
     Field over = field(c, t, "over", kTime, "30 min");
@@ -155,7 +173,14 @@ DoseEntry parse_dose(Ctx& c, const Value& t, int number, const model::Model* m) 
     }
 
     // How the series is given.
-    if (typo) {
+    const bool daily = t.find("times") != nullptr;
+    if (daily) {
+        if (!typo && !daily_times(c, t, start_clock, d.spec)) ok = false;
+    } else if (const Entry* days = t.find("days")) {
+        c.error(days->key_pos, "'days' needs 'times'", "times = [\"08:00\", \"20:00\"] with days = <number of days>, "
+                "or count = <number of doses> with every", 4);
+        ok = false;
+    } else if (typo) {
         // reported above
     } else if (count_e != nullptr && until.present) {
         c.value_error(*until.v, "'count' and 'until' cannot both be given",
@@ -180,15 +205,14 @@ DoseEntry parse_dose(Ctx& c, const Value& t, int number, const model::Model* m) 
 
     const double first = at.ok ? at.value : 0.0;
     const double interval = every.ok ? every.value : 0.0;
-    if (ok && until.ok && interval > 0.0) {
-        const double tol = 1e-9 * std::max(1.0, std::fabs(until.value));
-        if (until.value - first <= tol) {
+    if (ok && !daily && until.ok && interval > 0.0) {
+        if (!regimen::before(first, until.value)) {
             c.value_error(*until.v, "'until' (" + hours(until.value) + ") is not after the first dose (" + hours(first) + ")",
                           "a time after 'at'");
             ok = false;
         } else {
             // Doses at first + k*every strictly before until; counted in double so huge counts are refused at once.
-            double n = std::max(1.0, std::ceil((until.value - first) / interval - 1e-9));
+            double n = std::max(1.0, std::ceil((until.value - regimen::instant_tolerance(until.value) - first) / interval));
             if (n > static_cast<double>(regimen::kMaxDoses)) {
                 c.value_error(*until.v, "'until' gives " + fmt(n) + " doses in this [[doses]] entry",
                               "at most " + std::to_string(regimen::kMaxDoses) + " doses");
@@ -201,10 +225,13 @@ DoseEntry parse_dose(Ctx& c, const Value& t, int number, const model::Model* m) 
 
     if (ok) {
         d.spec.amount = amount.value;
-        d.spec.at = first;
-        d.spec.every = interval;
-        d.spec.count = count;
+        if (!daily) {
+            d.spec.at = first;
+            d.spec.every = interval;
+            d.spec.count = count;
+        }
         d.spec.over = over.ok ? over.value : rate.ok ? amount.value / rate.value : 0.0;
+        if (!deviations(c, t, start_clock, d.spec)) ok = false;
     }
     d.ok = ok;
     return d;
@@ -372,7 +399,7 @@ void check_schedule(Ctx& c, const std::vector<DoseEntry>& doses, regimen::Horizo
                     const Value* step_v, const Value& root) {
     long long total = 0;
     for (const auto& d : doses) {
-        total += d.spec.count;
+        total += d.spec.doses();
         if (total > regimen::kMaxDoses) {
             c.error(d.spec.pos,
                     "too many doses: " + std::to_string(total) + " in [[doses]] entries 1 to " + std::to_string(d.number),
@@ -380,7 +407,7 @@ void check_schedule(Ctx& c, const std::vector<DoseEntry>& doses, regimen::Horizo
             return;
         }
     }
-    auto last_time = [](const regimen::DoseSpec& s) { return s.at + static_cast<double>(s.count - 1) * s.every; };
+    auto last_time = [](const regimen::DoseSpec& s) { return s.last_time(); };
     if (until_v == nullptr) {
         const DoseEntry* latest = nullptr;
         double end_of_input = 0.0;
@@ -405,15 +432,14 @@ void check_schedule(Ctx& c, const std::vector<DoseEntry>& doses, regimen::Horizo
         for (const auto& d : doses) {
             const regimen::DoseSpec& s = d.spec;
             const double last = last_time(s);
-            if (last < h.until) continue;
+            if (regimen::before(last, h.until)) continue;
             // The first dose of the entry at or after the horizon end.
-            long k = 0;
-            if (s.at < h.until && s.every > 0.0)
-                k = std::min(s.count - 1, static_cast<long>(std::ceil((h.until - s.at) / s.every - 1e-12)));
-            const double when = s.at + static_cast<double>(k) * s.every;
-            std::string what = s.count == 1 ? "the dose at " + hours(when)
-                                            : "dose " + std::to_string(k + 1) + " of " + std::to_string(s.count) +
-                                                  ", at " + hours(when) + ",";
+            long k = 1;
+            while (k < s.doses() && s.dose_time(k) < h.until) ++k;
+            const double when = s.dose_time(k);
+            std::string what = s.doses() == 1 ? "the dose at " + hours(when)
+                                              : "dose " + std::to_string(k) + " of " + std::to_string(s.doses()) +
+                                                    ", at " + hours(when) + ",";
             c.error(s.pos, entry_name(d) + ": " + what +
                                (when > h.until ? " is after the horizon ends at " + hours(h.until)
                                                : " is at the end of the horizon, where it can have no effect"),
@@ -447,7 +473,10 @@ regimen::Regimen load_regimen(const std::string& path, const std::vector<std::st
         c.error(root.pos, "empty file: no regimen in it", "a regimen file with id, model and [[doses]]");
         sink.throw_if_any();
     }
-    check_keys(c, root, {"id", "model", "about", "parameters", "patient", "doses", "targets", "horizon"}, "a regimen file");
+    check_keys(c, root, {"id", "model", "about", "start_clock", "parameters", "patient", "doses", "targets", "horizon"},
+               "a regimen file");
+    if (const Entry* sc = root.find("start_clock"))
+        if (auto ct = clock_time(c, sc->value, "start_clock", false)) r.start_clock = ct->hour;
     if (const Value* id = get_string(c, root, "id", true, "the regimen file", "id = \"<regimen name>\"")) {
         if (id->str.empty()) c.value_error(*id, "the regimen id is empty", "a name, like \"q8h-1g\"");
         r.id = id->str;
@@ -489,7 +518,7 @@ regimen::Regimen load_regimen(const std::string& path, const std::vector<std::st
                 doses_ok = false;
                 continue;
             }
-            doses.push_back(parse_dose(c, item, static_cast<int>(doses.size()) + 1, m));
+            doses.push_back(parse_dose(c, item, static_cast<int>(doses.size()) + 1, m, r.start_clock));
             if (!doses.back().ok) doses_ok = false;
         }
     } else {

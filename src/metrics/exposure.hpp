@@ -9,9 +9,10 @@
 #include <vector>
 
 #include "metrics/level.hpp"
-#include "metrics/steady_state.hpp"
 #include "regimen/regimen.hpp"
+#include "sim/schedule.hpp"
 #include "sim/simulate.hpp"
+#include "sim/steady_state.hpp"
 
 namespace plateau::metrics {
 
@@ -20,7 +21,7 @@ struct Request {
     std::optional<double> above;                          // threshold, canonical output unit
     std::optional<std::pair<double, double>> window;      // [low, high], canonical output unit
     std::vector<std::pair<double, double>> auc_windows;   // extra AUC windows, h
-    sim::Options options;                                 // for the steady-state solve
+    sim::Options options;                                 // integration options of the run
 };
 
 struct AucWindow {
@@ -45,28 +46,37 @@ struct Interval {
                                 // the value at the horizon end)
 };
 
+// The value just before one dose of the steady-state cycle.
+struct CycleTrough {
+    double offset = 0.0;   // h after the cycle start
+    double value = 0.0;
+};
+
 struct Steady {
     bool found = false;
     std::string why_not;
-    double interval = 0.0;        // tau, h
-    double period_start = 0.0;    // time of the regimen's last period start
-    Extreme peak;                 // time after the period's first dose
+    double interval = 0.0;        // the cycle's period, h (one dosing interval for a single series)
+    double period_start = 0.0;    // time of the regimen's last cycle start
+    std::vector<sim::Dose> cycle_doses;   // the doses of one cycle, times as offsets from its start
+    Extreme peak;                 // time after the cycle start
     bool constant = false;        // the steady-state level does not vary (continuous input)
-    double trough = 0.0;
+    double trough = 0.0;          // the lowest of the values just before each dose of the cycle
+    double trough_time = 0.0;     // its offset in the cycle
+    std::vector<CycleTrough> troughs;  // the value just before each dose of the cycle (one per distinct time)
     Extreme minimum;
-    double auc = 0.0;             // over one interval
-    double average = 0.0;         // auc / tau
+    double auc = 0.0;             // over one cycle
+    double average = 0.0;         // auc / interval
     double auc24 = 0.0;           // average × 24 h
-    double above_hours = 0.0;     // per interval
-    double window_hours = 0.0;    // per interval
+    double above_hours = 0.0;     // per cycle
+    double window_hours = 0.0;    // per cycle
     double above_window_hours = 0.0;
-    double first_interval_auc = 0.0;  // the first dose of the pattern alone, over one interval
+    double first_interval_auc = 0.0;  // the doses of one cycle alone, from empty compartments, over one cycle
     double accumulation = 0.0;        // auc / first_interval_auc
     std::optional<double> within_10pct;  // time from which the output stays within 10 % of the steady-state
                                          // range [lowest, peak] (−10 % below the lowest, +10 % above the peak)
     std::optional<double> within_5pct;
     int newton_iterations = 0;
-    traj::Trajectory period;          // one steady-state interval, t = 0 .. tau (for plots)
+    traj::Trajectory period;          // one steady-state cycle, t = 0 .. interval (for plots)
 };
 
 struct Exposure {
@@ -74,7 +84,7 @@ struct Exposure {
     double start = 0.0, end = 0.0;     // horizon
     double first_dose = 0.0;
     Extreme peak;
-    Extreme minimum;                   // from the first dose's peak to the end of the horizon
+    Extreme minimum;                   // from the first peak to the end of the horizon, that peak included
     double auc = 0.0;                  // over the horizon
     std::vector<AucWindow> auc_windows;
     std::vector<Day> days;
@@ -89,7 +99,13 @@ struct Exposure {
     std::optional<Steady> steady;      // when the regimen repeats
 };
 
-// Computes everything for one simulation of the regimen.
+// Computes every figure of one simulation of the regimen from its schedule and, when the regimen repeats, its
+// periodic steady state (sim::steady_state). Integrates nothing.
+Exposure compute(const sim::Schedule& schedule, const sim::Simulation& sim,
+                 const std::optional<sim::PeriodicSolution>& steady, const Request& req);
+
+// Convenience for one simulated regimen: builds its schedule, solves its steady state (this integrates one
+// cycle several times) and computes every figure.
 Exposure compute(const regimen::Regimen& r, const sim::Simulation& sim, const Request& req);
 
 // The request a regimen's [targets] table asks for (output, above, window), with options.

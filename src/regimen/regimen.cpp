@@ -4,6 +4,12 @@
 
 namespace plateau::regimen {
 
+double DoseSpec::dose_time(long n) const {
+    const long per = static_cast<long>(offsets.size());
+    const long k = (n - 1) / per, j = (n - 1) % per;
+    return at + static_cast<double>(k) * every + offsets[static_cast<std::size_t>(j)];
+}
+
 std::vector<double> Regimen::parameter_values() const {
     if (!subject_values.empty()) return subject_values;
     std::vector<double> v = model.default_values();
@@ -30,7 +36,7 @@ BodySize Regimen::body_size() const {
 double bsa_mosteller(double weight_kg, double height_cm) { return std::sqrt(height_cm * weight_kg / 3600.0); }
 
 double resolved_amount(const DoseSpec& d, const BodySize& b) {
-    switch (d.per) {
+    switch (d.per_size) {
     case Per::None: return d.amount;
     case Per::Kg: return d.per_amount * b.weight_kg;
     case Per::M2: return d.per_amount * bsa_mosteller(b.weight_kg, b.height_cm);

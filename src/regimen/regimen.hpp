@@ -14,18 +14,36 @@ namespace plateau::regimen {
 // How a dose amount is written: a fixed amount, per kg of body weight, or per m² of body-surface area.
 enum class Per { None, Kg, M2 };
 
-// One [[doses]] entry: a single dose (count = 1) or a series of `count` doses one `every` apart.
+// A change to one dose of a series, as the patient took it: missed, taken late, or doubled.
+struct Deviation {
+    enum class Kind { Missed, Late, Doubled };
+    Kind kind = Kind::Missed;
+    long number = 0;          // 1-based dose number within its [[doses]] entry, in time order
+    double delay = 0.0;       // h, for Late
+    SourcePos pos;
+};
+
+// One [[doses]] entry: a single dose (count = 1), a series of `count` doses one `every` apart, or a daily
+// pattern of clock times (several offsets within each `every`).
 struct DoseSpec {
     std::string route;
     int route_index = -1;
     double amount = 0.0;      // mg, before the route's fraction (a per-size amount resolved for the patient)
-    Per per = Per::None;      // the amount as written is per kg of body weight or per m² of body-surface area
-    double per_amount = 0.0;  // mg per kg or per m² when `per` is set
-    double at = 0.0;          // h, time of the first dose
+    Per per_size = Per::None; // the amount as written is per kg of body weight or per m² of body-surface area
+    double per_amount = 0.0;  // mg per kg or per m² when `per_size` is set
+    double at = 0.0;          // h, start of the first repetition
     double every = 0.0;       // h, 0 for a single dose
-    long count = 1;           // number of doses (from `count`, or computed from `until`)
+    long count = 1;           // number of repetitions (from `count`, `until` or `days`)
+    std::vector<double> offsets{0.0};  // h, sorted, within [0, every): the doses of one repetition
     double over = 0.0;        // h, infusion / zero-order input duration; 0 = bolus
+    std::vector<Deviation> deviations;
     SourcePos pos;            // position of the [[doses]] table
+
+    long doses() const { return count * static_cast<long>(offsets.size()); }  // doses as prescribed
+    // Nominal time of dose number n (1-based, in time order), before any deviation.
+    double dose_time(long n) const;
+    double first_time() const { return at + offsets.front(); }
+    double last_time() const { return dose_time(doses()); }
 };
 
 struct Targets {
@@ -77,6 +95,7 @@ inline constexpr const char* kHeightName = "ht";
 
 struct Regimen {
     std::string id;
+    std::optional<double> start_clock;   // h after midnight at t = 0, when the file states it
     std::string about;
     std::string path;             // file it came from
     std::string model_ref;        // as written

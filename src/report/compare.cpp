@@ -26,10 +26,10 @@ Figures figures_of(const Candidate& c) {
     f.doses = static_cast<long>(c.sim.doses.size());
     const double horizon = e.end - e.start;
     f.dose_per_day = horizon > 0 ? f.total_dose / horizon * 24.0 : 0.0;
-    if (auto p = metrics::final_period(c.regimen)) {
-        double per_period = 0.0;
-        for (const auto& d : p->doses) per_period += d.amount;
-        f.dose_per_day = per_period / p->tau * 24.0;
+    if (const auto& cy = c.schedule.cycle) {
+        double per_cycle = 0.0;
+        for (const auto& d : cy->doses) per_cycle += d.amount;
+        f.dose_per_day = per_cycle / cy->period * 24.0;
     }
     if (!e.intervals.empty()) {
         f.first_peak = e.intervals.front().peak.value;

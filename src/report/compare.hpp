@@ -9,6 +9,7 @@
 
 #include "metrics/exposure.hpp"
 #include "regimen/regimen.hpp"
+#include "sim/schedule.hpp"
 #include "sim/simulate.hpp"
 
 namespace plateau::report {
@@ -16,6 +17,7 @@ namespace plateau::report {
 // One simulated and measured regimen.
 struct Candidate {
     regimen::Regimen regimen;
+    sim::Schedule schedule;       // the regimen's time structure (doses, intervals, cycle)
     sim::Simulation sim;
     metrics::Exposure exposure;
     std::string letter;   // "A", "B", ...

@@ -3,6 +3,7 @@
 #include <string>
 #include <vector>
 
+#include "report/cycle_words.hpp"
 #include "report/format.hpp"
 #include "report/targets.hpp"
 
@@ -90,32 +91,45 @@ void write_exposure_text(std::ostream& out, const regimen::Regimen& r, const sim
 
     if (e.steady) {
         const auto& st = *e.steady;
-        out << "\nSteady state (doses every " << num(st.interval, 6) << " h, solved directly)\n";
+        out << "\nSteady state (" << (st.interval > 0 ? cycle_description(st, r.model) : std::string("dosing pattern"))
+            << ", solved directly)\n";
         if (!st.found) row(out, "Not reached", st.why_not);
     }
     if (e.steady && e.steady->found) {
         const auto& st = *e.steady;
+        const std::string per = " per " + cycle_noun(st);
         if (st.constant) {
             row(out, "Level", c(st.peak.value) + ", constant (continuous input)");
         } else {
-            row(out, "Peak", c(st.peak.value) + ", " + num(st.peak.time, 6) + " h after the dose");
-            row(out, "Trough", c(st.trough) + " (just before the next dose)");
+            row(out, "Peak", c(st.peak.value) + ", " + num(st.peak.time, 6) + " h " + after_cycle_start(st));
+            if (multi_dose_cycle(st)) {
+                row(out, "Trough (lowest before a dose)",
+                    c(st.trough) + ", before the dose at +" + num(st.trough_time, 6) + " h");
+                std::string ts;
+                for (const auto& t : st.troughs)
+                    ts += (ts.empty() ? "" : ", ") + std::string("+") + num(t.offset, 6) + " h: " +
+                          num(in_output_unit(o, t.value), dg);
+                row(out, "Before each dose (" + u + ")", ts);
+            } else {
+                row(out, "Trough", c(st.trough) + " (just before the next dose)");
+            }
             if (st.minimum.value < st.trough * (1 - 1e-9))
-                row(out, "Lowest", c(st.minimum.value) + ", " + num(st.minimum.time, 6) + " h after the dose");
+                row(out, "Lowest", c(st.minimum.value) + ", " + num(st.minimum.time, 6) + " h " + after_cycle_start(st));
         }
         row(out, "Average", c(st.average));
-        row(out, "AUC per interval / per 24 h", num(in_output_unit(o, st.auc), dg) + " / " +
-                                                    num(in_output_unit(o, st.auc24), dg) + " " + au);
+        row(out, "AUC" + per + " / per 24 h", num(in_output_unit(o, st.auc), dg) + " / " +
+                                                   num(in_output_unit(o, st.auc24), dg) + " " + au);
         if (e.above)
-            row(out, "Time above " + c(*e.above), hours(st.above_hours) + " per interval (" +
+            row(out, "Time above " + c(*e.above), hours(st.above_hours) + per + " (" +
                                                       percent(st.above_hours / st.interval) + ")");
         if (e.window) {
-            row(out, "Time inside the window", hours(st.window_hours) + " per interval (" +
+            row(out, "Time inside the window", hours(st.window_hours) + per + " (" +
                                                    percent(st.window_hours / st.interval) + ")");
-            row(out, "Time above the window", hours(st.above_window_hours) + " per interval (" +
+            row(out, "Time above the window", hours(st.above_window_hours) + per + " (" +
                                                   percent(st.above_window_hours / st.interval) + ")");
         }
-        row(out, "Accumulation ratio (AUC)", num(st.accumulation, 5) + " (steady state / one interval's doses alone)");
+        row(out, "Accumulation ratio (AUC)",
+            num(st.accumulation, 5) + " (steady state / one " + cycle_noun(st) + "'s doses alone)");
         row(out, "Within 10 % of steady state", st.within_10pct ? "from " + num(*st.within_10pct, 5) + " h" : "not within the horizon");
         row(out, "Within 5 % of steady state", st.within_5pct ? "from " + num(*st.within_5pct, 5) + " h" : "not within the horizon");
     }

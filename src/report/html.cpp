@@ -8,6 +8,7 @@
 #include "plot/plot.hpp"
 #include "plot/sample.hpp"
 #include "report/caution.hpp"
+#include "report/cycle_words.hpp"
 #include "report/format.hpp"
 
 namespace plateau::report {
@@ -88,24 +89,30 @@ plot::Figure interval_figure(const Candidate& c) {
     const auto& o = output_of(c);
     const int s = c.sim.output_series(c.exposure.output);
     plot::Figure f;
-    f.title = c.letter + ": first interval and steady-state interval";
-    f.xlabel = "time after the dose (h)";
+    const std::string noun = c.exposure.steady ? cycle_noun(*c.exposure.steady) : std::string("interval");
+    f.title = c.letter + ": first " + noun + " and steady-state " + noun;
+    f.xlabel = noun == "cycle" ? "time after the cycle's first dose (h)" : "time after the dose (h)";
     f.ylabel = o.name + " (" + o.unit_text + ")";
     const auto& e = c.exposure;
     // The first interval of the repeating series (after any loading dose), else the first dosing interval.
     std::optional<metrics::Interval> first;
-    if (auto p = metrics::final_period(c.regimen)) {
-        const auto& spec = c.regimen.doses[static_cast<std::size_t>(p->entry)];
+    if (const auto& cy = c.schedule.cycle) {
+        double from = e.end;
+        for (const auto& d : c.schedule.doses)
+            if (std::find(cy->entries.begin(), cy->entries.end(), d.entry) != cy->entries.end()) {
+                from = d.time;
+                break;
+            }
         metrics::Interval iv;
-        iv.start = spec.at;
-        iv.end = std::min(spec.at + spec.every, e.end);
+        iv.start = from;
+        iv.end = std::min(from + cy->period, e.end);
         if (iv.end > iv.start) first = iv;
     }
     if (!first && !e.intervals.empty()) first = e.intervals.front();
     if (first) {
         const auto& iv = *first;
         plot::Curve cv = plot::sample(c.sim.trajectory, s, iv.start, iv.end, 400, o.unit.factor,
-                                      key_times(c.sim.trajectory, s, iv.start, iv.end), "first interval");
+                                      key_times(c.sim.trajectory, s, iv.start, iv.end), "first " + noun);
         for (double& t : cv.t) t -= iv.start;
         f.curves.push_back(std::move(cv));
     }
@@ -174,19 +181,28 @@ void figures_table(std::ostream& out, const Candidate& c) {
     if (e.steady && !e.steady->found) rows.push_back({"Steady state", e.steady->why_not});
     if (e.steady && e.steady->found) {
         const auto& st = *e.steady;
+        const std::string noun = cycle_noun(st);
+        rows.push_back({"Steady state: pattern", cycle_description(st, c.regimen.model)});
         if (st.constant) {
             rows.push_back({"Steady state: level", v(st.peak.value) + ", constant"});
         } else {
-            rows.push_back({"Steady state: peak", v(st.peak.value) + ", " + t(st.peak.time) + " after the dose"});
-            rows.push_back({"Steady state: trough", v(st.trough)});
+            rows.push_back({"Steady state: peak", v(st.peak.value) + ", " + t(st.peak.time) + " " + after_cycle_start(st)});
+            if (multi_dose_cycle(st)) {
+                rows.push_back({"Steady state: trough (lowest before a dose)",
+                                v(st.trough) + ", before the dose at +" + t(st.trough_time)});
+                for (const auto& tr : st.troughs)
+                    rows.push_back({"Steady state: before the dose at +" + t(tr.offset), v(tr.value)});
+            } else {
+                rows.push_back({"Steady state: trough", v(st.trough)});
+            }
             if (st.minimum.value < st.trough * (1 - 1e-9))
-                rows.push_back({"Steady state: lowest", v(st.minimum.value) + ", " + t(st.minimum.time) + " after the dose"});
+                rows.push_back({"Steady state: lowest", v(st.minimum.value) + ", " + t(st.minimum.time) + " " + after_cycle_start(st)});
         }
         rows.push_back({"Steady state: average", v(st.average)});
-        rows.push_back({"Steady state: AUC per interval / 24 h", num(in_output_unit(o, st.auc), 6) + " / " +
+        rows.push_back({"Steady state: AUC per " + noun + " / 24 h", num(in_output_unit(o, st.auc), 6) + " / " +
                                                                     num(in_output_unit(o, st.auc24), 6) + " " + au});
-        if (e.above) rows.push_back({"Steady state: time above the threshold", percent(st.above_hours / st.interval) + " of each interval"});
-        if (e.window) rows.push_back({"Steady state: time in the window", percent(st.window_hours / st.interval) + " of each interval"});
+        if (e.above) rows.push_back({"Steady state: time above the threshold", percent(st.above_hours / st.interval) + " of each " + noun});
+        if (e.window) rows.push_back({"Steady state: time in the window", percent(st.window_hours / st.interval) + " of each " + noun});
         rows.push_back({"Accumulation ratio (AUC)", num(st.accumulation, 5)});
         rows.push_back({"Within 10 % / 5 % of steady state",
                         (st.within_10pct ? "from " + t(*st.within_10pct) : std::string("not within the horizon")) + " / " +

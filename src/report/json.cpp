@@ -184,10 +184,36 @@ void write_exposure_json(std::ostream& out, const regimen::Regimen& r, const sim
         w.field("found", st.found ? "true" : "false");
         if (!st.found) w.str("reason", st.why_not);
         w.num("interval", st.interval);
+        if (!st.cycle_doses.empty()) {
+            // The doses that form the repeating cycle, as offsets from its start.
+            w.key("cycle"); w.open('{');
+            w.num("period", st.interval);
+            w.num("start", st.period_start);
+            w.key("doses"); w.open('[');
+            for (const auto& d : st.cycle_doses) {
+                w.open('{');
+                w.num("offset", d.time);
+                w.str("route", d.route >= 0 ? r.model.routes[static_cast<std::size_t>(d.route)].name : "");
+                w.num("amount_mg", d.amount);
+                w.num("over", d.duration);
+                w.num("entry", d.entry + 1);
+                w.close('}');
+            }
+            w.close(']');
+            w.close('}');
+        }
         if (st.found) {
             w.num("peak", c(st.peak.value)); w.num("peak_time", st.peak.time);
             w.field("constant", st.constant ? "true" : "false");
-            w.num("trough", c(st.trough));
+            w.num("trough", c(st.trough)); w.num("trough_time", st.trough_time);
+            w.key("troughs"); w.open('[');
+            for (const auto& t : st.troughs) {
+                w.open('{');
+                w.num("offset", t.offset);
+                w.num("value", c(t.value));
+                w.close('}');
+            }
+            w.close(']');
             w.num("minimum", c(st.minimum.value)); w.num("minimum_time", st.minimum.time);
             w.num("average", c(st.average));
             w.num("auc", c(st.auc)); w.num("auc24", c(st.auc24));

@@ -4,23 +4,9 @@
 #include <cmath>
 #include <stdexcept>
 
-namespace plateau::sim {
+#include "regimen/time.hpp"
 
-std::vector<Dose> expand_doses(const regimen::Regimen& r) {
-    std::vector<Dose> out;
-    long total = 0;
-    for (const auto& d : r.doses) total += d.count;
-    if (total > regimen::kMaxDoses) throw std::length_error("too many doses");
-    out.reserve(static_cast<std::size_t>(total));
-    for (std::size_t e = 0; e < r.doses.size(); ++e) {
-        const auto& d = r.doses[e];
-        for (long k = 0; k < d.count; ++k)
-            out.push_back(Dose{d.at + static_cast<double>(k) * d.every, d.route_index, d.amount, d.over,
-                               static_cast<int>(e)});
-    }
-    std::stable_sort(out.begin(), out.end(), [](const Dose& a, const Dose& b) { return a.time < b.time; });
-    return out;
-}
+namespace plateau::sim {
 
 namespace {
 struct Raw {
@@ -43,7 +29,9 @@ std::vector<Event> build_events(const model::Model& m, std::span<const double> p
         const double f = route.fraction ? model::evaluate_constant(m, *route.fraction, pv) : 1.0;
         const double lag = route.lag ? model::evaluate_constant(m, *route.lag, pv) : 0.0;
         const double t = d.time + lag;
-        if (d.duration > 0.0) {
+        // An infusion shorter than the time resolution would start and stop at one instant and vanish: it
+        // is given as a bolus instead (the loader says so).
+        if (d.duration > 0.0 && regimen::before(t, t + d.duration)) {
             const double rate = f * d.amount / d.duration;
             raw.push_back({t, route.into, 0.0, rate, lag != 0.0});
             raw.push_back({t + d.duration, route.into, 0.0, -rate, true});
@@ -56,7 +44,7 @@ std::vector<Event> build_events(const model::Model& m, std::span<const double> p
     std::vector<Event> events;
     std::vector<bool> exact;  // the event's time is a dose time as written, not a computed one
     for (const auto& r : raw) {
-        if (events.empty() || r.time - events.back().time > 1e-9 * std::max(1.0, std::abs(r.time))) {
+        if (events.empty() || regimen::before(events.back().time, r.time)) {
             events.push_back(Event{r.time, std::vector<double>(nc, 0.0), std::vector<double>(nc, 0.0)});
             exact.push_back(!r.computed);
         } else if (!r.computed && !exact.back()) {

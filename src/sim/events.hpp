@@ -19,9 +19,6 @@ struct Dose {
     int entry = 0;          // index of the [[doses]] entry it came from
 };
 
-// Every dose of every entry, sorted by time (stable for equal times).
-std::vector<Dose> expand_doses(const regimen::Regimen& r);
-
 // What happens to the model's compartments at one instant.
 struct Event {
     double time = 0.0;
@@ -29,8 +26,8 @@ struct Event {
     std::vector<double> rate_change; // change of input rate per compartment (mg/h)
 };
 
-// Applies routes (compartment, fraction, lag) to the doses and merges simultaneous events (times within
-// 1e-9 h·max(1, t) are one event). Infusions become a rate step up at the start and down at the end.
+// Applies routes (compartment, fraction, lag) to the doses and merges simultaneous events (one instant by
+// regimen/time.hpp). Infusions become a rate step up at the start and down at the end.
 std::vector<Event> build_events(const model::Model& m, std::span<const double> params, std::span<const Dose> doses);
 
 }  // namespace plateau::sim

@@ -4,6 +4,9 @@
 #include <cmath>
 #include <limits>
 
+#include "regimen/time.hpp"
+#include "sim/schedule.hpp"
+
 namespace plateau::sim {
 
 taylor::Tape model_tape(const model::Model& m) {
@@ -16,9 +19,47 @@ taylor::Tape model_tape(const model::Model& m) {
 }
 
 long step_budget(const Options& opt, int n_series, int order) {
-    const double per_step = 8.0 * static_cast<double>(n_series) * static_cast<double>(order + 1) + 16.0;
-    return std::max(1L, std::min(opt.max_steps, static_cast<long>(opt.max_bytes / per_step)));
+    return step_budget(opt, 8.0 * static_cast<double>(n_series) * static_cast<double>(order + 1) + 16.0);
 }
+
+long step_budget(const Options& opt, double bytes_per_step) {
+    return std::max(1L, std::min(opt.max_steps, static_cast<long>(opt.max_bytes / bytes_per_step)));
+}
+
+namespace {
+
+// Dense output as compact as the model allows (trajectory.hpp): outputs affine in the states are derived from
+// them, and a linear model keeps only x[0] and x[1] of each step.
+void choose_storage(traj::Trajectory& tr, taylor::Stepper& stepper) {
+    const taylor::Expander& ex = stepper.expander();
+    const int ns = ex.n_states(), no = ex.n_outputs();
+    std::vector<char> affine(static_cast<std::size_t>(no));
+    std::vector<double> w, d;
+    for (int j = 0; j < no; ++j) {
+        affine[static_cast<std::size_t>(j)] = ex.output_affine(j) ? 1 : 0;
+        const auto wj = ex.output_weights(j);
+        w.insert(w.end(), wj.begin(), wj.end());
+        d.push_back(ex.output_offset(j));
+    }
+    std::vector<double> a;
+    if (ex.linear()) a.assign(ex.linear_matrix().begin(), ex.linear_matrix().end());
+    tr.set_compact(ns, std::move(a), std::move(affine), std::move(w), std::move(d));
+}
+
+// Amounts below this fraction of the largest dose are far below anything a report can show: the step control
+// stops following them and a compartment that falls below it is emptied (see DEVELOPERS.md, "Decayed states").
+constexpr double kDoseFloor = 1e-30;
+
+double dose_scale(const std::vector<Event>& events) {
+    double big = 0.0;
+    for (const Event& e : events) {
+        for (double b : e.bolus) big = std::max(big, std::abs(b));
+        for (double r : e.rate_change) big = std::max(big, std::abs(r) * 1.0);  // an hour of the input rate
+    }
+    return big;
+}
+
+}  // namespace
 
 Simulation integrate_events(const model::Model& m, taylor::Stepper& stepper, const std::vector<Event>& events,
                             std::span<const double> x0, double t_end, const Options& opt) {
@@ -27,16 +68,28 @@ Simulation integrate_events(const model::Model& m, taylor::Stepper& stepper, con
     sim.end = t_end;
     sim.order = stepper.order();
     sim.trajectory = traj::Trajectory(stepper.n_series(), stepper.order());
+    choose_storage(sim.trajectory, stepper);
 
     const std::size_t nc = m.compartments.size();
     std::vector<double> x(x0.begin(), x0.end()), u(nc, 0.0), coeffs;
     const std::size_t stride = static_cast<std::size_t>(stepper.order()) + 1;
-    const long budget = step_budget(opt, stepper.n_series(), stepper.order());
+    const long budget = step_budget(opt, static_cast<double>(sim.trajectory.bytes_per_step()));
+    sim.budget = budget;
+    double scale = dose_scale(events);
+    for (double v : x0) scale = std::max(scale, std::abs(v));
+    const double floor = kDoseFloor * scale;
+    const double saved_floor = stepper.floor();
+    stepper.set_floor(floor);
+    struct Restore {  // the stepper is the caller's: leave its floor as it was
+        taylor::Stepper& s;
+        double f;
+        ~Restore() { s.set_floor(f); }
+    } restore{stepper, saved_floor};
     double t = 0.0;
     std::size_t next = 0;
     while (true) {
         // Apply every event due now (events before 0 are applied at 0).
-        while (next < events.size() && events[next].time <= t + 1e-9 * std::max(1.0, std::abs(t))) {
+        while (next < events.size() && !regimen::before(t, events[next].time)) {
             for (std::size_t c = 0; c < nc; ++c) {
                 x[c] += events[next].bolus[c];
                 u[c] += events[next].rate_change[c];
@@ -65,6 +118,7 @@ Simulation integrate_events(const model::Model& m, taylor::Stepper& stepper, con
             if (lands) h = h_max;
             sim.trajectory.append(t, h, coeffs);
             ++sim.steps;
+            double largest = 0.0;
             for (std::size_t c = 0; c < nc; ++c) {
                 double v = 0.0;
                 for (std::size_t k = stride; k-- > 0;) v = v * h + coeffs[c * stride + k];
@@ -74,7 +128,15 @@ Simulation integrate_events(const model::Model& m, taylor::Stepper& stepper, con
                     sim.failed_at = t + h;
                     return sim;
                 }
+                largest = std::max(largest, std::abs(v));
             }
+            // Emptied compartments: an amount below the dose floor, or below the rounding unit of the largest
+            // amount (it changes no other amount by more than that rounding), is set to zero. Otherwise an
+            // emptied fast compartment (a gut after absorption) is followed down to 1e-300 mg, or hovers at
+            // round-off where only the explicit method's stability keeps its steps short.
+            const double empty_below = std::max(floor, 0x1p-53 * largest);
+            for (std::size_t c = 0; c < nc; ++c)
+                if (std::abs(x[c]) < empty_below) x[c] = 0.0;
             t = lands ? stop : t + h;
         }
     }
@@ -102,7 +164,7 @@ std::vector<double> final_state(const Simulation& sim) {
 }
 
 Simulation simulate(const regimen::Regimen& r, const Options& opt) {
-    return simulate(r.model, r.parameter_values(), expand_doses(r), r.horizon.until, opt);
+    return simulate(r.model, r.parameter_values(), make_schedule(r).doses, r.horizon.until, opt);
 }
 
 }  // namespace plateau::sim

@@ -24,6 +24,8 @@ struct Options {
 
 // The step budget of a simulation: max_steps, lowered so that the kept polynomials fit in max_bytes.
 long step_budget(const Options& opt, int n_series, int order);
+// The same for a trajectory that keeps `bytes_per_step` per step (compact storage keeps fewer).
+long step_budget(const Options& opt, double bytes_per_step);
 
 struct Simulation {
     traj::Trajectory trajectory; // series: compartments (mg), then outputs (canonical units)
@@ -32,6 +34,7 @@ struct Simulation {
     std::vector<Dose> doses;     // the administrations, nominal times
     double end = 0.0;            // horizon end (h)
     long steps = 0;
+    long budget = 0;             // the step budget of this run (step_budget of its storage)
     int order = 0;
     taylor::Outcome outcome = taylor::Outcome::Ok;
     double failed_at = 0.0;      // time of the failure when outcome != Ok

@@ -37,6 +37,13 @@ public:
     int n_series() const { return expander_.n_series(); }
     void set_params(std::span<const double> params) { expander_.set_params(params); }
     Expander& expander() { return expander_; }
+    const Expander& expander() const { return expander_; }
+
+    // Lower bound of N in the step rule while some series is non-zero (0: purely relative). The simulation
+    // sets it to a tiny fraction of the largest dose, so amounts far below anything readable stop shrinking
+    // the steps.
+    void set_floor(double floor) { floor_ = floor; }
+    double floor() const { return floor_; }
 
     // One step from (t0, x0) with constant inputs u, at most h_max long. Fills `coeffs` (n_series × (order+1)).
     StepResult step(double t0, std::span<const double> x0, std::span<const double> u, double h_max,
@@ -44,6 +51,10 @@ public:
 
 private:
     Expander expander_;
+    double floor_ = 0.0;
+    double safety_ = 0.0;          // e^{−2}·e^{−0.7/(p−1)}
+    std::vector<double> inv_j_;    // 1/j
+    std::vector<double> inv_jm1_;  // 1/(j−1)
 };
 
 }  // namespace plateau::taylor

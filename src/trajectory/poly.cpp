@@ -127,9 +127,23 @@ std::vector<double> unit_polynomial(std::span<const double> c, double level, dou
 
 }  // namespace
 
+bool no_root_possible(std::span<const double> c, double level, double h) {
+    if (c.empty()) return true;
+    // |p(τ) − p(0)| ≤ Σ_{k≥1} |c_k|·h^k on [0, h]: when p(0) is farther than that from the level, p − level
+    // keeps its sign over the step. O(d), no allocation: most steps of a trajectory end here.
+    double spread = 0.0, hk = 1.0;
+    for (std::size_t k = 1; k < c.size(); ++k) {
+        hk *= h;
+        spread += std::abs(c[k]) * hk;
+    }
+    // The margin keeps near-touches for the isolation, which reports |p − level| ≤ 1e-12·Σ|q_k| as a root.
+    return std::abs(c[0] - level) * (1.0 - 1e-11) > spread * (1.0 + 1e-11);
+}
+
 std::vector<double> roots_in(std::span<const double> c, double level, double h) {
-    Finder fd{c, level, h, {}};
     if (!(h > 0.0) || c.empty()) return {};
+    if (no_root_possible(c, level, h)) return {};
+    Finder fd{c, level, h, {}};
     std::vector<double> q = unit_polynomial(c, level, h);
     if (q.size() <= 1) return {};  // constant: no isolated roots
     double magnitude = 0.0;
@@ -144,6 +158,15 @@ std::vector<double> roots_in(std::span<const double> c, double level, double h) 
 
 std::vector<double> critical_points_in(std::span<const double> c, double h) {
     if (c.size() < 3) return {};
+    {
+        // The same bound on p'(τ) = Σ k·c_k·τ^{k−1}, before building the derivative.
+        double spread = 0.0, hk = 1.0;
+        for (std::size_t k = 2; k < c.size(); ++k) {
+            hk *= h;
+            spread += static_cast<double>(k) * std::abs(c[k]) * hk;
+        }
+        if (std::abs(c[1]) * (1.0 - 1e-11) > spread * (1.0 + 1e-11)) return {};
+    }
     std::vector<double> d(c.size() - 1);
     for (std::size_t k = 1; k < c.size(); ++k) d[k - 1] = static_cast<double>(k) * c[k];
     return roots_in(d, 0.0, h);

@@ -21,6 +21,9 @@ double integral_from_zero(std::span<const double> c, double tau);
 // information evaluate the polynomial between roots.
 std::vector<double> roots_in(std::span<const double> c, double level, double h);
 
+// True when p(τ) − level cannot vanish on [0, h] (an O(d) bound: |p(τ) − p(0)| ≤ Σ_{k≥1} |c_k|·h^k).
+bool no_root_possible(std::span<const double> c, double level, double h);
+
 // Roots of p'(τ) in (0, h): the interior critical points of p.
 std::vector<double> critical_points_in(std::span<const double> c, double h);
 

@@ -70,7 +70,7 @@ TEST_CASE("input: a complete diagnostic shows file, line, column, the line, a ca
           kCases + "regimen-unknown-key-doses.toml:8:1: error: unknown key 'evry' in [[doses]]\n"
                    "  evry = \"8 h\"\n"
                    "  ^~~~\n"
-                   "  expected: one of: route, amount, at, every, count, until, over, rate\n");
+                   "  expected: one of: route, amount, at, every, count, until, over, rate, times, days, missed, late, doubled\n");
 
     // Inside a string: the caret is under the offending unit, not under the quote.
     ds = regimen_errors(kCases + "regimen-amount-time.toml");

@@ -4,6 +4,7 @@
 #include <fstream>
 #include <unistd.h>
 
+#include "cli/evaluate.hpp"
 #include "input/load.hpp"
 
 namespace plateau::testing {
@@ -22,12 +23,10 @@ regimen::Regimen regimen_from_text(const std::string& name, const std::string& t
 }
 
 Run run_text(const std::string& name, const std::string& text, double tol) {
-    Run r{regimen_from_text(name, text), {}, {}};
     sim::Options opt;
     opt.tol = tol;
-    r.sim = sim::simulate(r.regimen, opt);
-    r.exposure = metrics::compute(r.regimen, r.sim, metrics::request_from(r.regimen, opt));
-    return r;
+    report::Candidate c = cli::evaluate(regimen_from_text(name, text), opt, {});
+    return Run{std::move(c.regimen), std::move(c.schedule), std::move(c.sim), std::move(c.exposure)};
 }
 
 }  // namespace plateau::testing

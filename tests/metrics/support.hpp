@@ -5,6 +5,7 @@
 
 #include "metrics/exposure.hpp"
 #include "regimen/regimen.hpp"
+#include "sim/schedule.hpp"
 #include "sim/simulate.hpp"
 
 namespace plateau::testing {
@@ -17,11 +18,12 @@ regimen::Regimen regimen_from_text(const std::string& name, const std::string& t
 
 struct Run {
     regimen::Regimen regimen;
+    sim::Schedule schedule;
     sim::Simulation sim;
     metrics::Exposure exposure;
 };
 
-// Loads, simulates and computes the exposure figures with the regimen's own targets.
+// Loads, simulates and computes the exposure figures with the regimen's own targets (the CLI's pipeline).
 Run run_text(const std::string& name, const std::string& text, double tol = 1e-10);
 
 }  // namespace plateau::testing

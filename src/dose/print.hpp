@@ -1,0 +1,29 @@
+// The results of a dose search as text (a table ranked by daily dose, the recommended candidate marked with the
+// rule, notes, the caution at top and bottom) and as JSON (every candidate). Nothing is computed here.
+#pragma once
+
+#include <ostream>
+#include <string>
+#include <vector>
+
+#include "dose/search.hpp"
+
+namespace plateau::dose {
+
+struct Report {
+    const Template* tmpl = nullptr;
+    std::vector<Goal> goals;
+    Request request;
+    double tolerance = 1e-10;
+    int recommended = -1;           // index into the ranked candidates, −1 for none
+    std::vector<std::string> notes; // printed before the closing caution
+    std::string trailer;            // files written
+};
+
+void write_text(std::ostream& out, const Report& r, const std::vector<Found>& fs);
+void write_json(std::ostream& out, const Report& r, const std::vector<Found>& fs);
+
+// "8 h", "30 min" is written "0.5 h"; "bolus" for 0.
+std::string duration_text(double h);
+
+}  // namespace plateau::dose

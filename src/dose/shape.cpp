@@ -1,0 +1,52 @@
+#include "dose/shape.hpp"
+
+#include <algorithm>
+#include <cmath>
+
+namespace plateau::dose {
+
+Template make_template(regimen::Regimen r) {
+    std::vector<std::size_t> series;
+    for (std::size_t i = 0; i < r.doses.size(); ++i)
+        if (r.doses[i].count > 1) series.push_back(i);
+    if (series.size() == 1) return Template{std::move(r), series.front()};
+    DiagnosticSink sink;
+    if (series.empty()) {
+        sink.error(SourcePos{r.path, 0, 0}, "no repeating dose series to vary",
+                   "one [[doses]] entry with 'every' and 'count' (or 'until'): the maintenance series");
+    } else {
+        for (std::size_t i : series)
+            sink.error(r.doses[i].pos, "one of " + std::to_string(series.size()) + " repeating dose series",
+                       "exactly one [[doses]] entry with 'every': the maintenance series the search varies");
+    }
+    sink.throw_if_any();
+    return {};  // not reached
+}
+
+regimen::Regimen variant(const Template& t, const Shape& s, double amount, std::optional<double> loading) {
+    regimen::Regimen r = t.regimen;
+    const regimen::DoseSpec old = r.doses[t.series];
+    regimen::DoseSpec d = old;
+    d.amount = amount;
+    d.every = s.tau;
+    d.over = s.over;
+    // The same span of time as the template's series, at least two doses (a steady state needs a repeat).
+    const double span = static_cast<double>(old.count) * old.every;
+    d.count = std::max(2L, static_cast<long>(std::ceil(span / s.tau - 1e-9)));
+    if (loading) {
+        regimen::DoseSpec first = d;
+        first.amount = *loading;
+        first.count = 1;
+        first.every = 0.0;
+        d.at += s.tau;
+        d.count = std::max(2L, d.count - 1);
+        r.doses = {first, d};
+    } else {
+        r.doses[t.series] = d;
+    }
+    const double series_end = d.at + static_cast<double>(d.count) * d.every;
+    r.horizon.until = std::max(r.horizon.until, series_end);
+    return r;
+}
+
+}  // namespace plateau::dose

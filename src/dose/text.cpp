@@ -1,0 +1,191 @@
+#include <algorithm>
+#include <cmath>
+
+#include "dose/print.hpp"
+#include "report/caution.hpp"
+#include "report/format.hpp"
+
+namespace plateau::dose {
+
+namespace {
+
+constexpr std::size_t kWidth = 100;
+
+// Greedy word wrap: the first line starts with `first`, the others with `indent`.
+void wrap(std::ostream& out, const std::string& text, const std::string& first, const std::string& indent) {
+    std::string line = first;
+    bool fresh = true;
+    std::size_t pos = 0;
+    while (pos < text.size()) {
+        const std::size_t sp = text.find(' ', pos);
+        const std::string word = text.substr(pos, sp == std::string::npos ? std::string::npos : sp - pos);
+        pos = sp == std::string::npos ? text.size() : sp + 1;
+        if (!fresh && report::display_width(line) + 1 + report::display_width(word) > kWidth) {
+            out << line << '\n';
+            line = indent;
+            fresh = true;
+        }
+        line += (fresh ? "" : " ") + word;
+        fresh = false;
+    }
+    out << line << '\n';
+}
+
+void caution(std::ostream& out) { wrap(out, std::string("CAUTION: ") + report::kCaution, "", "         "); }
+
+const model::Output& output_of(const regimen::Regimen& r) {
+    const int i = r.targets.output.empty() ? 0 : std::max(0, r.model.output_index(r.targets.output));
+    return r.model.outputs[static_cast<std::size_t>(i)];
+}
+
+std::string verdict_cell(const Found& f) {
+    if (f.outcome != Outcome::FallsShort) return outcome_name(f.outcome);
+    std::string s = "falls short:";
+    for (const auto& v : f.verdicts)
+        if (v.met != true) s += " " + v.kind;
+    return s;
+}
+
+// The figures shown: one column per kind of figure the goals use.
+std::vector<Figure> shown(const std::vector<Goal>& goals) {
+    std::vector<Figure> fs;
+    for (Figure k : {Figure::Lowest, Figure::Peak, Figure::AboveShare, Figure::Auc24})
+        if (std::any_of(goals.begin(), goals.end(), [&](const Goal& g) { return g.figure == k; })) fs.push_back(k);
+    return fs;
+}
+
+std::string figure_cell(Figure k, const Found& f, const model::Output& o) {
+    if (!f.at || !f.at->exposure.steady || !f.at->exposure.steady->found) return "—";
+    const metrics::Steady& s = *f.at->exposure.steady;
+    switch (k) {
+        case Figure::Lowest: return report::num(report::in_output_unit(o, s.minimum.value));
+        case Figure::Peak: return report::num(report::in_output_unit(o, s.peak.value));
+        case Figure::AboveShare: return report::percent(s.above_hours / s.interval);
+        case Figure::Auc24: return report::num(report::in_output_unit(o, s.auc24));
+    }
+    return "";
+}
+
+void table(std::ostream& out, const std::vector<std::vector<std::string>>& rows) {
+    std::vector<std::size_t> w;
+    for (const auto& r : rows)
+        for (std::size_t i = 0; i < r.size(); ++i) {
+            if (w.size() <= i) w.resize(i + 1, 0);
+            w[i] = std::max(w[i], report::display_width(r[i]));
+        }
+    for (const auto& r : rows) {
+        std::string line = "  ";
+        for (std::size_t i = 0; i < r.size(); ++i)
+            line += i + 1 < r.size() ? report::pad_right(r[i], w[i] + 2) : r[i];
+        while (!line.empty() && line.back() == ' ') line.pop_back();
+        out << line << '\n';
+    }
+}
+
+}  // namespace
+
+std::string duration_text(double h) { return h > 0.0 ? report::num(h) + " h" : "bolus"; }
+
+void write_text(std::ostream& out, const Report& r, const std::vector<Found>& fs) {
+    caution(out);
+    out << '\n';
+    const regimen::Regimen& t = r.tmpl->regimen;
+    const model::Output& o = output_of(t);
+    const regimen::DoseSpec& spec = t.doses[r.tmpl->series];
+    out << "Dose search — template " << t.id << " (" << t.path << "), model '" << t.model.id << "', output '"
+        << o.name << "' (" << o.unit_text << ")\n";
+    std::vector<std::string> labels;
+    for (const auto& g : r.goals) labels.push_back(g.label);
+    std::string goals;
+    for (std::size_t i = 0; i < labels.size(); ++i) goals += (i ? "; " : "") + labels[i];
+    wrap(out, goals + " (at steady state)", "Targets   ", "          ");
+    wrap(out,
+         "the maintenance series (" + report::num(spec.amount) + " mg every " + duration_text(spec.every) +
+             (spec.over > 0 ? " over " + duration_text(spec.over) : " as a bolus") + " in the template): " +
+             std::to_string(fs.size()) + " candidate" + (fs.size() == 1 ? "" : "s") +
+             "; the smallest dose meeting every target, to 1e-12 relative",
+         "Varied    ", "          ");
+    if (r.request.round_step > 0)
+        wrap(out,
+             "doses up to a multiple of " + report::num(r.request.round_step) +
+                 " mg (to the nearest for an exact target or a compromise); every figure is at the rounded dose",
+             "Rounded   ", "          ");
+    out << '\n';
+
+    const std::vector<Figure> figs = shown(r.goals);
+    std::vector<std::vector<std::string>> rows;
+    std::vector<std::string> head = {"", "every", "over", "dose (mg)"};
+    if (r.request.round_step > 0) head.push_back("solved (mg)");
+    head.push_back("mg/day");
+    if (r.request.loading) head.push_back("loading (mg)");
+    for (Figure k : figs) head.push_back(figure_name(k));
+    head.push_back("set by");
+    head.push_back("verdict");
+    rows.push_back(head);
+    for (std::size_t i = 0; i < fs.size(); ++i) {
+        const Found& f = fs[i];
+        std::vector<std::string> row = {static_cast<int>(i) == r.recommended ? "*" : "", duration_text(f.shape.tau),
+                                        duration_text(f.shape.over), report::num(f.dose, 6)};
+        if (r.request.round_step > 0) row.push_back(report::num(f.exact, 6));
+        row.push_back(report::num(f.daily(), 6));
+        if (r.request.loading)
+            row.push_back(f.loading && f.loading->problem.empty() ? report::num(f.loading->dose, 6) : "—");
+        for (Figure k : figs) row.push_back(figure_cell(k, f, o));
+        row.push_back(f.deciding.empty() ? "—" : f.deciding);
+        row.push_back(verdict_cell(f));
+        rows.push_back(row);
+    }
+    table(out, rows);
+    out << '\n';
+    std::string units = "Figures at steady state, at the dose shown:";
+    for (Figure k : figs) {
+        if (k == Figure::Lowest) units += " ss lowest (lowest value), ";
+        if (k == Figure::Peak) units += " ss peak, ";
+        if (k == Figure::AboveShare) units += " above (share of each interval above the threshold), ";
+        if (k == Figure::Auc24) units += " AUC24 (" + report::auc_unit(o.unit_text) + "), ";
+    }
+    units.resize(units.size() - 2);
+    if (std::find(figs.begin(), figs.end(), Figure::Lowest) != figs.end() ||
+        std::find(figs.begin(), figs.end(), Figure::Peak) != figs.end())
+        units += "; concentrations in " + o.unit_text;
+    wrap(out, units + ".", "", "");
+    if (r.recommended >= 0) {
+        const Found& f = fs[static_cast<std::size_t>(r.recommended)];
+        wrap(out,
+             "* recommended (" + std::string(kRule) + "): " + report::num(f.dose, 6) + " mg every " +
+                 duration_text(f.shape.tau) +
+                 (f.shape.over > 0 ? " as " + duration_text(f.shape.over) + " infusions" : " as a bolus") + ", " +
+                 report::num(f.daily(), 6) + " mg a day.",
+             "", "  ");
+        if (f.loading && f.loading->problem.empty())
+            wrap(out,
+                 "  Loading dose: " + report::num(f.loading->dose, 6) + " mg (solved " +
+                     report::num(f.loading->exact, 6) + " mg) as the first dose; first-interval " + f.loading->figure +
+                     " " + report::num(f.loading->figure == "trough" ? report::in_output_unit(o, f.loading->first_value)
+                                                                      : f.loading->first_value) +
+                     " against " +
+                     report::num(f.loading->figure == "trough" ? report::in_output_unit(o, f.loading->steady_value)
+                                                               : f.loading->steady_value) +
+                     " at steady state" + (f.loading->figure == "trough" ? " (" + o.unit_text + ")." : "."),
+                 "", "    ");
+    } else {
+        wrap(out, "No candidate meets every target: nothing is recommended.", "", "");
+    }
+    std::vector<std::string> notes;
+    for (const Found& f : fs) {
+        const std::string who = "every " + duration_text(f.shape.tau) + ", " +
+                                (f.shape.over > 0 ? "over " + duration_text(f.shape.over) : "bolus") + ": ";
+        if (!f.message.empty()) notes.push_back(who + f.message + ".");
+        if (f.loading && !f.loading->problem.empty()) notes.push_back(who + "no loading dose: " + f.loading->problem + ".");
+    }
+    notes.insert(notes.end(), r.notes.begin(), r.notes.end());
+    if (!notes.empty()) {
+        out << "\nNotes\n";
+        for (const auto& n : notes) wrap(out, n, "  - ", "    ");
+    }
+    out << '\n';
+    if (!r.trailer.empty()) out << r.trailer;
+    caution(out);
+}
+
+}  // namespace plateau::dose
