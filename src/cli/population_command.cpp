@@ -1,6 +1,7 @@
 // `plateau population`: a virtual population through one or more regimens, on the same patients.
 #include <unistd.h>
 
+#include <algorithm>
 #include <chrono>
 #include <cmath>
 #include <cstdio>
@@ -114,6 +115,9 @@ int population_command(const PopulationOptions& opt, std::ostream& out, std::ost
         setup.seed = opt.seed;
         setup.threads = opt.threads;
         setup.options.tol = opt.tol;
+        // The bands on the first regimen's grid (its [horizon] step), at most 1001 points per regimen.
+        setup.band_points = static_cast<int>(
+            std::clamp(std::round(r0.horizon.until / r0.horizon.step) + 1.0, 2.0, 1001.0));
         const bool show = opt.progress && isatty(STDERR_FILENO) == 1;
         const auto start = std::chrono::steady_clock::now();
         std::mutex progress_mutex;

@@ -120,10 +120,15 @@ void write_population_text(std::ostream& out, const PopulationRun& p, const std:
             << " without one, " << s.failed << " failed numerically (counted as not attaining)\n";
     }
     const int best = best_regimen(p);
-    if (best >= 0 && rs.size() > 1)
-        out << "\nMost patients reach \"" << s0.targets.front().what << "\" with " << letter_for(static_cast<std::size_t>(best))
-            << " (" << rs[static_cast<std::size_t>(best)].id << "): "
-            << percent(p.summaries[static_cast<std::size_t>(best)].targets.front().pta) << "\n";
+    if (best >= 0 && rs.size() > 1) {
+        const std::size_t top = p.summaries[static_cast<std::size_t>(best)].targets.front().attained;
+        std::string who;
+        for (std::size_t r = 0; r < rs.size(); ++r)
+            if (p.summaries[r].targets.front().attained == top) who += (who.empty() ? "" : ", ") + letter_for(r) + " (" + rs[r].id + ")";
+        out << "\nMost patients reach \"" << s0.targets.front().what << "\" with " << who << ": "
+            << percent(p.summaries[static_cast<std::size_t>(best)].targets.front().pta) << " (" << top << " of " << p.size
+            << ")\n";
+    }
     out << trailer << "\n" << caution << "\n";
 }
 

@@ -70,7 +70,7 @@ double cl_star() {
 population::RegimenSummary summary_of(const regimen::Regimen& r, const population::Result& res, std::size_t k) {
     std::vector<std::pair<std::string, std::string>> kinds;
     for (const auto& v : report::verdicts(r.targets, r.model.outputs[0], metrics::Exposure{})) kinds.emplace_back(v.kind, v.what);
-    return population::summarize(res.figures[k], res.bands[k], 241, kinds, {}, nullptr);
+    return population::summarize(res.figures[k], res.bands[k], population::Setup{}.band_points, kinds, {}, nullptr);
 }
 
 }  // namespace
