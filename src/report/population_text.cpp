@@ -1,6 +1,7 @@
 // The terminal summary of a population run: who, which regimens, PTA per target with its interval, percentiles,
 // the PTA curve, the expected attainment, the subjects that failed or had no steady state, and the caution.
 #include <cmath>
+#include <cstdio>
 
 #include "report/caution.hpp"
 #include "report/compare.hpp"
@@ -54,7 +55,11 @@ std::string variability_line(const model::Model& m);
 void write_population_text(std::ostream& out, const PopulationRun& p, const std::string& trailer) {
     const auto& rs = *p.regimens;
     const model::Output& o = output_of(rs.front());
-    const std::string caution = std::string("CAUTION: ") + kCaution;
+    // The caution wrapped at 100 columns, continuation lines under its text, as the other reports print it.
+    std::string caution = std::string("CAUTION: ") + kCaution;
+    for (std::size_t line = 0, cut; caution.size() - line > 100 && (cut = caution.rfind(' ', line + 100)) > line;
+         line = cut + 10)
+        caution.replace(cut, 1, "\n         ");
     out << caution << "\n\n";
     out << "Population of " << p.size << " virtual patients — model '" << rs.front().model.id << "', output '" << o.name
         << "' (" << o.unit_text << ")\n";
@@ -62,7 +67,9 @@ void write_population_text(std::ostream& out, const PopulationRun& p, const std:
         out << "Cohort '" << p.cohort->id << "'" << (p.cohort->about.empty() ? "" : " — " + p.cohort->about) << "\n";
     else
         out << "No cohort: every patient has the regimen's covariates; only the parameters vary\n";
-    out << "Seed " << p.seed << "; the same patients under every regimen; tolerance " << num(p.tol) << "\n";
+    char tol[32];
+    std::snprintf(tol, sizeof tol, "%g", p.tol);
+    out << "Seed " << p.seed << "; the same patients under every regimen; tolerance " << tol << "\n";
     out << "Variability: " << variability_line(rs.front().model) << "\n\n";
     for (std::size_t r = 0; r < rs.size(); ++r)
         out << "  " << letter_for(r) << "  " << rs[r].id << (rs[r].about.empty() ? "" : " — " + rs[r].about) << "\n";
