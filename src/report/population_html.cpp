@@ -1,6 +1,7 @@
 // The HTML report of a population run and its figures: the bands (median, 25–75 %, 5–95 %) per regimen, and the
 // PTA against the threshold. Self-contained, printable; the caution at the top and the bottom.
 #include <cmath>
+#include <cstdio>
 #include <sstream>
 
 #include "core/escape.hpp"
@@ -99,7 +100,9 @@ std::string population_html(const PopulationRun& p) {
     const std::string caution = "<p class=\"caution\"><strong>Caution.</strong> " + esc(kCaution) + "</p>\n";
     h << caution;
     h << "<h1>Virtual population: " << p.size << " patients, model " << esc(rs.front().model.id) << "</h1>\n";
-    h << "<p>Output " << esc(o.name) << " (" << esc(o.unit_text) << "); seed " << p.seed << "; tolerance " << num(p.tol)
+    char tol[32];
+    std::snprintf(tol, sizeof tol, "%g", p.tol);
+    h << "<p>Output " << esc(o.name) << " (" << esc(o.unit_text) << "); seed " << p.seed << "; tolerance " << tol
       << "; " << esc(p.date) << ". Every regimen runs on the same patients.</p>\n";
     h << "<h2>Who</h2>\n";
     if (p.cohort != nullptr) {
@@ -127,7 +130,7 @@ std::string population_html(const PopulationRun& p) {
       << "<th>without</th><th>failed</th></tr>\n";
     for (std::size_t r = 0; r < rs.size(); ++r) {
         const auto& s = p.summaries[r];
-        h << "<tr><td>" << letter_for(r) << "</td><td>" << esc(rs[r].id) << "</td><td style=\"text-align:left\">"
+        h << "<tr><td>" << letter_for(r) << "</td><td style=\"text-align:left\">" << esc(rs[r].id) << "</td><td style=\"text-align:left\">"
           << esc(rs[r].about) << "</td><td>" << s.ok << "</td><td>" << s.no_steady_state << "</td><td>" << s.failed << "</td></tr>\n";
     }
     h << "</table>\n";
