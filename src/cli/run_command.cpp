@@ -8,6 +8,7 @@
 #include "cli/evaluate.hpp"
 #include "cli/outputs.hpp"
 #include "cli/support.hpp"
+#include "regimen/time.hpp"
 #include "report/exposure_text.hpp"
 #include "core/diagnostic.hpp"
 #include "input/load.hpp"
@@ -88,11 +89,12 @@ int run_command(const RunOptions& opt, std::ostream& out, std::ostream& err) {
 
         check_outputs(opt.json, opt.report, opt.plot, {opt.regimen}, opt.csv);
         regimen::Regimen r = load(opt.regimen, opt.model_dirs, opt.targets);
+        print_warnings(r, err);
         const double horizon = r.horizon.until;
         if (!opt.csv.empty()) {
             if (has_times) {
                 for (double& t : times) {
-                    if (t > horizon && t <= horizon + 1e-9 * std::max(1.0, horizon)) t = horizon;
+                    if (t > horizon && regimen::same_instant(t, horizon)) t = horizon;
                     if (t > horizon)
                         throw UsageError("--times: " + num(t) +
                                          " h is after the end of the horizon; expected times from 0 to " +

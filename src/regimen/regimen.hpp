@@ -93,6 +93,12 @@ double resolved_amount(const DoseSpec& d, const BodySize& b);
 inline constexpr const char* kWeightName = "wt";
 inline constexpr const char* kHeightName = "ht";
 
+// Something in the file that runs, but not as written (shown as "file:line:col: warning: ...").
+struct Warning {
+    SourcePos pos;
+    std::string message;
+};
+
 struct Regimen {
     std::string id;
     std::optional<double> start_clock;   // h after midnight at t = 0, when the file states it
@@ -106,6 +112,7 @@ struct Regimen {
     std::vector<DoseSpec> doses;
     Targets targets;
     Horizon horizon;
+    std::vector<Warning> warnings;
 
     // Model defaults with the overrides and the patient's covariates applied, derived parameters recomputed
     // (or subject_values when set).

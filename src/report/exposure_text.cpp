@@ -113,7 +113,7 @@ void write_exposure_text(std::ostream& out, const regimen::Regimen& r, const sim
             } else {
                 row(out, "Trough", c(st.trough) + " (just before the next dose)");
             }
-            if (st.minimum.value < st.trough * (1 - 1e-9))
+            if (st.dips_below_trough())
                 row(out, "Lowest", c(st.minimum.value) + ", " + num(st.minimum.time, 6) + " h " + after_cycle_start(st));
         }
         row(out, "Average", c(st.average));
