@@ -71,9 +71,34 @@ void print_model(std::ostream& out, const model::Model& m) {
     if (!m.path.empty()) out << "file: " << m.path << '\n';
 
     std::vector<std::vector<std::string>> rows;
-    for (const auto& p : m.parameters)
-        rows.push_back({p.name, with_unit(units::to_unit(p.value, p.unit), p.unit_text, kParameterDigits), p.about});
-    out << "\nparameters\n" << format_table(rows, 2);
+    for (const auto kind : {model::ParamKind::Fixed, model::ParamKind::Covariate, model::ParamKind::Derived}) {
+        rows.clear();
+        for (const auto& p : m.parameters) {
+            if (p.kind != kind) continue;
+            std::vector<std::string> row{p.name, with_unit(units::to_unit(p.value, p.unit), p.unit_text, kParameterDigits)};
+            if (kind == model::ParamKind::Derived) row.push_back("= " + p.expr_text);
+            row.push_back(p.about);
+            rows.push_back(row);
+        }
+        if (kind == model::ParamKind::Fixed) out << "\nparameters\n" << format_table(rows, 2);
+        else if (!rows.empty())
+            out << (kind == model::ParamKind::Covariate ? "\ncovariates (typical values)\n"
+                                                        : "\nderived parameters (typical values; once per subject)\n")
+                << format_table(rows, 2);
+    }
+    rows.clear();
+    for (std::size_t i = 0; i < m.variability.size(); ++i) {
+        const auto& v = m.variability[i];
+        const char* kind = v.spread == model::Spread::LogNormal ? "log-normal, CV" :
+                           v.spread == model::Spread::LogitNormal ? "logit-normal, sd on the logit scale" : "normal, sd";
+        std::string corr;
+        for (std::size_t j = 0; j < m.variability.size() && !m.correlation.empty(); ++j)
+            if (j != i && m.correlation[i * m.variability.size() + j] != 0.0)
+                corr += (corr.empty() ? "correlation " : ", ") + m.variability[j].name + " " +
+                        num(m.correlation[i * m.variability.size() + j], 4);
+        rows.push_back({v.name, v.text, std::string(kind) + ", ω = " + num(v.omega, 4) + (corr.empty() ? "" : "; " + corr)});
+    }
+    if (!rows.empty()) out << "\nbetween-subject variability\n" << format_table(rows, 2);
 
     rows.clear();
     for (const auto& c : m.compartments) rows.push_back({c.name, c.unit_text});

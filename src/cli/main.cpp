@@ -158,6 +158,27 @@ int main(int argc, char** argv) {
                        "  plateau compare a.toml b.toml --above 2mg/L --above-for 50% --json -\n"
                        "Regimens may differ in anything but must share the output and its unit."));
 
+    cli::PopulationOptions pop_opt;
+    CLI::App* pop = app.add_subcommand("population", "Virtual patients through regimens: PTA, percentiles, bands");
+    pop->add_option("regimens", pop_opt.regimens, "Regimen files (.toml) of one model")->required()->type_name("REGIMEN...");
+    pop->add_option("--cohort", pop_opt.cohort, "Cohort file: the covariates of the virtual patients")->type_name("FILE");
+    pop->add_option("--size", pop_opt.size, "Number of virtual patients (default 1000)")->type_name("N");
+    pop->add_option("--seed", pop_opt.seed, "Seed: the same seed gives the same patients (default 1)")->type_name("S");
+    pop->add_option("--threads", pop_opt.threads, "Threads (the output does not depend on it; default 1)")->type_name("N");
+    pop->add_option("--tol", pop_opt.tol, "Integration tolerance, 1e-15 to 1e-3 (default 1e-10)")
+        ->check(tolerance_validator())
+        ->type_name("TOL");
+    pop->add_option("--csv", pop_opt.csv, "One row per patient and regimen ('-': standard output)")->type_name("FILE");
+    pop->add_option("--pta-curve", pop_opt.pta_curve, "PTA at doubling thresholds, e.g. 0.25mg/L..64mg/L")->type_name("LOW..HIGH");
+    pop->add_option("--thresholds", pop_opt.thresholds, "Threshold distribution file: the expected attainment")->type_name("FILE");
+    std::vector<std::string> pop_auc;
+    add_outputs(pop, pop_opt.json, pop_opt.report, pop_opt.plot, pop_auc);
+    pop->remove_option(pop->get_option("--auc"));
+    add_targets(pop, pop_opt.targets);
+    add_model_dirs(pop, pop_opt.model_dirs);
+    pop->footer(footer("  plateau population a.toml b.toml --cohort cohorts/adults.toml --size 2000 --above 4mg/L\n"
+                       "  plateau population a.toml --above 2mg/L --pta-curve 0.25mg/L..64mg/L --json - --threads 2"));
+
     cli::CheckOptions check_opt;
     CLI::App* check = app.add_subcommand("check", "Validate model and regimen files without simulating");
     check->add_option("files", check_opt.files, "Model or regimen files")->required()->type_name("FILE");
@@ -203,9 +224,14 @@ int main(int argc, char** argv) {
         std::string what = plain_words(e, sub);
         if (sub == nullptr) {
             // No command was recognised: say which ones there are, in our words.
-            const std::vector<std::string> commands{"run", "compare", "check", "models", "dose"};
+            std::vector<std::string> commands;  // from the table of subcommands, in its order
+            std::string list;
+            for (const CLI::App* c : app.get_subcommands([](CLI::App*) { return true; })) {
+                commands.push_back(c->get_name());
+                list += (list.empty() ? "" : ", ") + c->get_name();
+            }
             what = argc > 1 && argv[1][0] != '-' ? "unknown command '" + std::string(argv[1]) + "'" : "no command given";
-            what += "; expected one of: run, compare, check, models, dose";
+            what += "; expected one of: " + list;
             if (argc > 1 && argv[1][0] != '-') what += plateau::did_you_mean(argv[1], commands);
         }
         std::cerr << "error: " << what << "\n(run '" << where << " --help' for usage)\n";
@@ -224,6 +250,7 @@ int main(int argc, char** argv) {
         run_opt.all_intervals = intervals == "all";
         if (*run) return cli::run_command(run_opt, std::cout, std::cerr);
         if (*cmp) return cli::compare_command(cmp_opt, std::cout, std::cerr);
+        if (*pop) return cli::population_command(pop_opt, std::cout, std::cerr);
         if (*check) return cli::check_command(check_opt, std::cout, std::cerr);
         if (*models) return cli::models_command(models_opt, std::cout, std::cerr);
         if (*dose) return cli::dose_command(dose_opt, std::cout, std::cerr);

@@ -63,6 +63,32 @@ void require(Ctx& c, Field& f, bool good, const std::string& message, const std:
     f.ok = false;
 }
 
+// `amount`: a mass ("500 mg"), or a mass per kg of body weight ("15 mg/kg") or per m² of body-surface area
+// ("75 mg/m2"), resolved against the patient once the whole file is read.
+Field amount_field(Ctx& c, const Value& t, regimen::DoseSpec& spec) {
+    const Entry* e = t.find("amount");
+    if (e == nullptr || e->value.kind != Kind::String) return field(c, t, "amount", kMass, "250 mg");
+    const std::string& text = e->value.str;
+    for (const auto& [tail, per] : {std::pair<std::string, regimen::Per>{"/kg", regimen::Per::Kg},
+                                    {"/m2", regimen::Per::M2}, {"/m\xC2\xB2", regimen::Per::M2}}) {
+        if (text.size() <= tail.size() || text.compare(text.size() - tail.size(), tail.size(), tail) != 0) continue;
+        Field f;
+        f.present = true;
+        f.v = &e->value;
+        try {
+            f.value = units::parse_quantity(std::string_view(text).substr(0, text.size() - tail.size()), kMass).value;
+            f.ok = true;
+            spec.per_size = per;
+            spec.per_amount = f.value;
+        } catch (const TextError&) {
+            c.value_error(e->value, "cannot read the amount '" + text + "'",
+                          "a mass per body size, like \"15 mg/kg\" or \"75 mg/m2\"");
+        }
+        return f;
+    }
+    return field(c, t, "amount", kMass, "250 mg");
+}
+
 DoseEntry parse_dose(Ctx& c, const Value& t, int number, const model::Model* m, const std::optional<double>& start_clock) {
     DoseEntry d;
     d.number = number;
@@ -92,7 +118,7 @@ DoseEntry parse_dose(Ctx& c, const Value& t, int number, const model::Model* m, 
         ok = false;
     }
 
-    Field amount = field(c, t, "amount", kMass, "250 mg");
+    Field amount = amount_field(c, t, d.spec);
     // `at` may be a clock time ("14:00", "day 2 08:00") when the file states the clock time at t = 0.
     Field at;
     const Entry* at_e = t.find("at");
@@ -224,6 +250,13 @@ void load_overrides(Ctx& c, const Value& table, const model::Model& m, regimen::
             continue;
         }
         const model::Parameter& p = m.parameters[static_cast<std::size_t>(idx)];
+        if (p.kind != model::ParamKind::Fixed) {
+            c.error(e.key_pos, "'" + e.key + "' is a " + (p.kind == model::ParamKind::Covariate ? "covariate" : "derived parameter") +
+                                   " of model '" + m.id + "'",
+                    p.kind == model::ParamKind::Covariate ? "its value in [patient]" : "values for its inputs instead",
+                    static_cast<int>(e.key.size()));
+            continue;
+        }
         std::string example = fmt(units::to_unit(p.value, p.unit));
         if (!p.unit_text.empty()) example += " " + p.unit_text;
         auto q = quantity(c, e.value, e.key, p.dim, example, p.dim.dimensionless());
@@ -512,7 +545,7 @@ regimen::Regimen load_regimen(const std::string& path, const std::vector<std::st
         c.error(root.pos, "empty file: no regimen in it", "a regimen file with id, model and [[doses]]");
         sink.throw_if_any();
     }
-    check_keys(c, root, {"id", "model", "about", "start_clock", "parameters", "doses", "targets", "horizon"},
+    check_keys(c, root, {"id", "model", "about", "start_clock", "parameters", "patient", "doses", "targets", "horizon"},
                "a regimen file");
     if (const Entry* sc = root.find("start_clock"))
         if (auto ct = clock_time(c, sc->value, "start_clock", false)) r.start_clock = ct->hour;
@@ -535,6 +568,9 @@ regimen::Regimen load_regimen(const std::string& path, const std::vector<std::st
         std::vector<const Value*> values;
         if (m != nullptr) load_overrides(c, *p, *m, r, values);
     }
+
+    const Value* patient = get_table(c, root, "patient", false, "the regimen file", "[patient] with lines like wt = \"82 kg\"");
+    if (patient != nullptr && m != nullptr) load_patient(c, *patient, *m, r);
 
     std::vector<DoseEntry> doses;
     bool doses_ok = true;
@@ -578,6 +614,7 @@ regimen::Regimen load_regimen(const std::string& path, const std::vector<std::st
     if (doses_ok && horizon_ok)
         check_schedule(c, doses, entry_lags(doses, m, r), r.horizon, until_v, step_v, root, r.warnings);
     for (auto& d : doses) r.doses.push_back(d.spec);
+    if (doses_ok && m != nullptr) resolve_per_size(c, r);
     if (sink.empty()) resolution_warnings(r);
 
     throw_sorted(sink, path);

@@ -246,3 +246,10 @@ void write_exposure_json(std::ostream& out, const regimen::Regimen& r, const sim
 }
 
 }  // namespace plateau::report
+
+namespace plateau::report {
+
+std::string json_string(std::string_view s) { return quote(s); }
+std::string json_number(double v) { return number(v); }
+
+}  // namespace plateau::report

@@ -121,7 +121,8 @@ const Case kCatalogue[] = {
      "one of: into, fraction, lag"},
     {"model-unknown-key-top.toml", false, 1,
      "model-unknown-key-top.toml:3:1: error: unknown key 'sumary' in a model file; did you mean 'summary'?",
-     "one of: id, summary, parameters, compartments, rates, outputs, routes"},
+     "one of: id, summary, parameters, covariates, derived, compartments, rates, outputs, routes, variability, "
+     "correlation"},
     {"model-unknown-unit.toml", false, 1,
      "model-unknown-unit.toml:7:22: error: unknown unit 'litres' in '40 litres'",
      "a unit such as mg, L, h, mg/L, L/h, 1/h"},
@@ -244,7 +245,7 @@ const Case kCatalogue[] = {
      "one of: output, above, above_for, window, auc24"},
     {"regimen-unknown-key-top.toml", true, 1,
      "regimen-unknown-key-top.toml:4:1: error: unknown key 'abuot' in a regimen file; did you mean 'about'?",
-     "one of: id, model, about, start_clock, parameters, doses, targets, horizon"},
+     "one of: id, model, about, start_clock, parameters, patient, doses, targets, horizon"},
     {"regimen-unknown-model.toml", true, 1,
      "regimen-unknown-model.toml:3:10: error: unknown model 'simple-orl'; did you mean 'simple-oral'?",
      "one of: simple-oral, two-comp-iv; or a path to a .toml file relative to this regimen"},
