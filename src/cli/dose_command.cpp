@@ -63,7 +63,7 @@ regimen::Regimen recommended_regimen(const dose::Template& t, const dose::Found&
     regimen::Regimen r = dose::variant(t, f.shape, f.dose, load);
     r.id = t.regimen.id + "-dose";
     r.about = num(f.dose, 6) + " mg every " + dose::duration_text(f.shape.tau) +
-              (f.shape.over > 0 ? " as " + dose::duration_text(f.shape.over) + " infusions" : " as a bolus") +
+              (f.shape.over > 0 ? " as infusions over " + dose::duration_text(f.shape.over) : " as a bolus") +
               (load ? ", " + num(*load, 6) + " mg loading dose first" : "") + " (the dose search's " +
               dose::kRule + ", from " + t.regimen.id + ")";
     return r;
@@ -129,6 +129,9 @@ int dose_command(const DoseOptions& opt, std::ostream& out, std::ostream& err) {
         rep.request = q;
         rep.tolerance = opt.tol;
         rep.recommended = dose::rank(found);
+        if (!spec.deviations.empty())
+            rep.notes.push_back("The template's missed, late or doubled doses are left out: candidates are measured "
+                                "as prescribed.");
         if (q.loading && r.doses.size() > 1)
             rep.notes.push_back("With --loading, the template's single doses are left out: the loading dose is the "
                                 "first dose of each candidate.");

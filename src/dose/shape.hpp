@@ -16,7 +16,7 @@ struct Template {
 };
 
 // Finds the maintenance series. Throws InputError (at the file, or at each series) when the file has no
-// repeating series or more than one.
+// repeating series, more than one, or one given as several clock times a day.
 Template make_template(regimen::Regimen r);
 
 // One candidate shape: a dose every `tau` hours, each given over `over` hours (0: bolus).
@@ -25,7 +25,8 @@ struct Shape {
     double over = 0.0;
 };
 
-// The template with the maintenance series set to `amount` (mg) every tau over `over`. With a loading dose the
+// The template with the maintenance series set to `amount` (mg) every tau over `over`, as prescribed (the
+// template's missed, late or doubled doses are left out). With a loading dose the
 // series' first dose becomes `loading` (mg, same route and infusion length) and the template's single doses are
 // left out, so the first interval is the loading dose's alone.
 regimen::Regimen variant(const Template& t, const Shape& s, double amount, std::optional<double> loading = {});

@@ -92,8 +92,10 @@ void write_text(std::ostream& out, const Report& r, const std::vector<Found>& fs
     const regimen::Regimen& t = r.tmpl->regimen;
     const model::Output& o = output_of(t);
     const regimen::DoseSpec& spec = t.doses[r.tmpl->series];
-    out << "Dose search — template " << t.id << " (" << t.path << "), model '" << t.model.id << "', output '"
-        << o.name << "' (" << o.unit_text << ")\n";
+    wrap(out,
+         "Dose search — template " + t.id + " (" + t.path + "), model '" + t.model.id + "', output '" + o.name +
+             "' (" + o.unit_text + ")",
+         "", "  ");
     std::vector<std::string> labels;
     for (const auto& g : r.goals) labels.push_back(g.label);
     std::string goals;
@@ -137,14 +139,15 @@ void write_text(std::ostream& out, const Report& r, const std::vector<Found>& fs
     }
     table(out, rows);
     out << '\n';
-    std::string units = "Figures at steady state, at the dose shown:";
+    std::vector<std::string> parts;
     for (Figure k : figs) {
-        if (k == Figure::Lowest) units += " ss lowest (lowest value), ";
-        if (k == Figure::Peak) units += " ss peak, ";
-        if (k == Figure::AboveShare) units += " above (share of each interval above the threshold), ";
-        if (k == Figure::Auc24) units += " AUC24 (" + report::auc_unit(o.unit_text) + "), ";
+        if (k == Figure::Lowest) parts.push_back("ss lowest (the lowest value)");
+        if (k == Figure::Peak) parts.push_back("ss peak");
+        if (k == Figure::AboveShare) parts.push_back("above (share of each interval above the threshold)");
+        if (k == Figure::Auc24) parts.push_back("AUC24 (" + report::auc_unit(o.unit_text) + ")");
     }
-    units.resize(units.size() - 2);
+    std::string units = "Figures at steady state, at the dose shown:";
+    for (std::size_t i = 0; i < parts.size(); ++i) units += (i ? ", " : " ") + parts[i];
     if (std::find(figs.begin(), figs.end(), Figure::Lowest) != figs.end() ||
         std::find(figs.begin(), figs.end(), Figure::Peak) != figs.end())
         units += "; concentrations in " + o.unit_text;
@@ -154,7 +157,7 @@ void write_text(std::ostream& out, const Report& r, const std::vector<Found>& fs
         wrap(out,
              "* recommended (" + std::string(kRule) + "): " + report::num(f.dose, 6) + " mg every " +
                  duration_text(f.shape.tau) +
-                 (f.shape.over > 0 ? " as " + duration_text(f.shape.over) + " infusions" : " as a bolus") + ", " +
+                 (f.shape.over > 0 ? " as infusions over " + duration_text(f.shape.over) : " as a bolus") + ", " +
                  report::num(f.daily(), 6) + " mg a day.",
              "", "  ");
         if (f.loading && f.loading->problem.empty())
