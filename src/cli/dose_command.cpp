@@ -57,7 +57,7 @@ double amount_of(const std::string& text, std::string_view what) {
 }
 
 // The recommended candidate as a regimen: the template's model, parameters, targets and horizon, the found doses.
-regimen::Regimen recommended_regimen(const dose::Template& t, const dose::Found& f) {
+regimen::Regimen recommended_regimen(const dose::Template& t, const dose::Found& f, const std::string& rule) {
     std::optional<double> load;
     if (f.loading && f.loading->problem.empty()) load = f.loading->dose;
     regimen::Regimen r = dose::variant(t, f.shape, f.dose, load);
@@ -65,7 +65,7 @@ regimen::Regimen recommended_regimen(const dose::Template& t, const dose::Found&
     r.about = num(f.dose, 6) + " mg every " + dose::duration_text(f.shape.tau) +
               (f.shape.over > 0 ? " as infusions over " + dose::duration_text(f.shape.over) : " as a bolus") +
               (load ? ", " + num(*load, 6) + " mg loading dose first" : "") + " (the dose search's " +
-              dose::kRule + ", from " + t.regimen.id + ")";
+              rule + ", from " + t.regimen.id + ")";
     return r;
 }
 
@@ -150,7 +150,7 @@ int dose_command(const DoseOptions& opt, std::ostream& out, std::ostream& err) {
             if (rep.recommended < 0) {
                 written << "Regimen   not written to " << opt.write << ": no candidate meets every target\n";
             } else {
-                const regimen::Regimen best = recommended_regimen(t, found[static_cast<std::size_t>(rep.recommended)]);
+                const regimen::Regimen best = recommended_regimen(t, found[static_cast<std::size_t>(rep.recommended)], dose::rule(goals));
                 write_file(opt.write,
                            dose::regimen_text(best, "Written by plateau dose from " + r.path +
                                                         ". Research simulation only, not clinical advice."),

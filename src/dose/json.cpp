@@ -59,7 +59,7 @@ void write_json(std::ostream& out, const Report& r, const std::vector<Found>& fs
             << ", \"figure\": " << q(figure_name(g.figure)) << ", \"side\": " << q(side_name(g.side)) << "}";
     }
     out << "\n  ],\n  \"round_mg\": " << (r.request.round_step > 0 ? n(r.request.round_step) : "null")
-        << ",\n  \"rule\": " << q(kRule) << ",\n  \"recommended\": " << (r.recommended >= 0 ? std::to_string(r.recommended) : "null")
+        << ",\n  \"rule\": " << q(rule(r.goals)) << ",\n  \"recommended\": " << (r.recommended >= 0 ? std::to_string(r.recommended) : "null")
         << ",\n  \"candidates\": [";
     for (std::size_t i = 0; i < fs.size(); ++i) {
         const Found& f = fs[i];

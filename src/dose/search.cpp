@@ -38,6 +38,7 @@ public:
         double need = 0.0, cap = std::numeric_limits<double>::infinity();
         std::string need_label, cap_label, need_name, cap_name;
         std::optional<double> exact;
+        std::string exact_label;
         for (std::size_t gi = 0; gi < goals_.size(); ++gi) {
             const Goal& g = goals_[gi];
             Root r = solve_rising([&](double d) { return figures(d)[gi]; }, g.value, start);
@@ -54,7 +55,7 @@ public:
                 return measured(f, start, start);
             }
             if (g.side == Side::Lower && r.high > need) need = r.high, need_label = g.label, need_name = g.name;
-            if (g.side == Side::Exact) exact = r.high, f.deciding = g.name;
+            if (g.side == Side::Exact) exact = r.high, exact_label = g.label, f.deciding = g.name;
             // An upper goal never reached (even at the largest dose searched) sets no limit.
             if (g.side == Side::Upper && std::isfinite(r.high) && r.low < cap) cap = r.low, cap_label = g.label, cap_name = g.name;
         }
@@ -81,12 +82,28 @@ public:
                          ", halfway between the two on a log scale";
         }
         measured(f, dose, round(dose, nearest));
+        if (exact && q_.round_step > 0.0)
+            // A value asked exactly is hit at the solved dose; the preparable dose is the nearest step to it.
+            for (auto& v : f.verdicts)
+                if (v.kind == "auc24") {
+                    v.met = true;
+                    v.what += " (hit at " + mg(f.exact) + "; " + mg(f.dose) + " is the nearest " +
+                              mg(q_.round_step) + " step)";
+                }
+        if (exact) {
+            const Goal& g = *std::find_if(goals_.begin(), goals_.end(), [](const Goal& x) { return x.side == Side::Exact; });
+            f.miss = std::abs(figure_of(g, f.at->exposure) - g.value) / g.value;
+        }
         if (f.outcome != Outcome::Infeasible) {
             f.outcome = all_met(f.verdicts) ? Outcome::Meets : Outcome::FallsShort;
+            std::vector<std::string> missed;
+            for (const auto& v : f.verdicts)
+                if (v.met != true) missed.push_back(v.what);
+            std::string list;
+            for (std::size_t i = 0; i < missed.size(); ++i) list += (i ? "; " : "") + missed[i];
             if (f.outcome == Outcome::FallsShort)
-                f.message = q_.round_step > 0.0 && f.dose != f.exact
-                                ? "at the rounded dose some targets are not met (see the verdicts)"
-                                : "at this dose some targets are not met (see the verdicts)";
+                f.message = exact ? "the dose for " + exact_label + " misses: " + list
+                                  : "rounding up to " + mg(f.dose) + " misses: " + list;
         }
         if (q_.loading && f.outcome != Outcome::Infeasible) f.loading = loading(f);
         return f;
@@ -180,9 +197,17 @@ int rank(std::vector<Found>& fs) {
     std::stable_sort(fs.begin(), fs.end(), [](const Found& a, const Found& b) {
         const bool ma = a.outcome == Outcome::Meets, mb = b.outcome == Outcome::Meets;
         if (ma != mb) return ma;
+        // Closest to an exact goal first; differences below the figures' round-off do not count.
+        if (std::abs(a.miss - b.miss) > 1e-9) return a.miss < b.miss;
         return a.daily() < b.daily();
     });
     return !fs.empty() && fs.front().outcome == Outcome::Meets ? 0 : -1;
+}
+
+std::string rule(const std::vector<Goal>& goals) {
+    const bool exact = std::any_of(goals.begin(), goals.end(), [](const Goal& g) { return g.side == Side::Exact; });
+    return exact ? "closest to the exact target, then smallest daily dose, meeting every target"
+                 : "smallest daily dose meeting every target";
 }
 
 std::string outcome_name(Outcome o) {

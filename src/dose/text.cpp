@@ -155,7 +155,7 @@ void write_text(std::ostream& out, const Report& r, const std::vector<Found>& fs
     if (r.recommended >= 0) {
         const Found& f = fs[static_cast<std::size_t>(r.recommended)];
         wrap(out,
-             "* recommended (" + std::string(kRule) + "): " + report::num(f.dose, 6) + " mg every " +
+             "* recommended (" + rule(r.goals) + "): " + report::num(f.dose, 6) + " mg every " +
                  duration_text(f.shape.tau) +
                  (f.shape.over > 0 ? " as infusions over " + duration_text(f.shape.over) : " as a bolus") + ", " +
                  report::num(f.daily(), 6) + " mg a day.",

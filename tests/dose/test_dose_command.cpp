@@ -201,3 +201,39 @@ TEST_CASE("dose: a bad request exits 1 with a clear message", "[dose]") {
         CHECK_THAT(r.err, Catch::Contains("is an input file"));
     }
 }
+
+TEST_CASE("dose: an exact AUC24 is rounded to the nearest step and the closest candidate is recommended", "[dose]") {
+    cli::DoseOptions o;
+    o.regimen = demo("zelmarin-q8h-4h.toml");
+    o.targets.auc24 = "400";  // one value: AUC24 = 400 exactly
+    o.intervals = "8h,6h";
+    o.round = "250mg";
+    o.json = "-";
+    const auto r = dose_cmd(o);
+    REQUIRE(r.code == 0);
+    const auto js = jsonmini::parse(r.out);  // JSON on standard output, the table on standard error
+    CHECK_THAT(r.err, Catch::Contains("Dose search"));
+    // CL = 8 L/h and fu = 0.8: AUC24 of the free level = 0.8 · daily dose / CL, so 4000 mg a day gives 400
+    // mg·h/L (computed from the closed form AUC = F·D/CL, reference identity 11).
+    const auto& c = jsonmini::at(js, "candidates");
+    REQUIRE(c.items.size() == 2);
+    CHECK(jsonmini::number(js, "recommended") == 0);
+    CHECK(jsonmini::number(js, "candidates/0/interval") == 6.0);  // 1000 mg every 6 h hits 400 exactly
+    CHECK(jsonmini::number(js, "candidates/0/dose_mg") == 1000.0);
+    CHECK(jsonmini::number(js, "candidates/0/steady_state/auc24") == Approx(400.0).epsilon(1e-9));
+    // Every 8 h: 1333.33 mg solved, 1250 mg the nearest 250-mg step (not 1500: nearest, not up).
+    CHECK(jsonmini::number(js, "candidates/1/solved_mg") == Approx(4000.0 / 3.0).epsilon(1e-9));
+    CHECK(jsonmini::number(js, "candidates/1/dose_mg") == 1250.0);
+    CHECK(jsonmini::at(js, "rule").s == "closest to the exact target, then smallest daily dose, meeting every target");
+}
+
+TEST_CASE("dose: a maintenance series of several clock times a day is refused", "[dose]") {
+    test::TempDir d("dose");
+    cli::DoseOptions o;
+    o.regimen = d.write("clock.toml", "id = \"clock\"\nmodel = \"one-compartment-iv\"\nstart_clock = \"08:00\"\n"
+                                      "[[doses]]\nroute = \"iv\"\namount = \"1 g\"\n"
+                                      "times = [\"08:00\", \"20:00\"]\ndays = 3\n[targets]\nabove = \"1 mg/L\"\n");
+    const auto r = dose_cmd(o);
+    CHECK(r.code == 1);
+    CHECK_THAT(r.err, Catch::Contains("clock.toml:4:1: error: the maintenance series gives several clock times"));
+}
