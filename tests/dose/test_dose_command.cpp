@@ -237,3 +237,33 @@ TEST_CASE("dose: a maintenance series of several clock times a day is refused", 
     CHECK(r.code == 1);
     CHECK_THAT(r.err, Catch::Contains("clock.toml:4:1: error: the maintenance series gives several clock times"));
 }
+
+TEST_CASE("dose: the README excerpt is what the command prints", "[dose]") {
+    test::TempDir d("dose");
+    const std::string readme = slurp(std::string(PLATEAU_SOURCE_DIR) + "/README.md");
+    const std::size_t at = readme.find("Dose search — template zelmarin-q8h-4h");
+    REQUIRE(at != std::string::npos);
+    const std::size_t from = readme.rfind("```text\n", at) + 8;
+    const std::string excerpt = readme.substr(from, readme.find("```", from) - from);
+
+    cli::DoseOptions o;
+    o.regimen = demo("zelmarin-q8h-4h.toml");
+    o.intervals = "8h";
+    o.over = "4h";
+    o.targets.above = "4mg/L";
+    o.round = "250mg";
+    o.loading = true;
+    o.write = d.file("zelmarin-found.toml");
+    const auto r = dose_cmd(o);
+    REQUIRE(r.code == 0);
+    // Paths differ (absolute here, relative in the README) and so may the wrapping: compare words.
+    auto words = [](std::string s, const std::vector<std::string>& strip) {
+        for (const auto& p : strip)
+            for (std::size_t k; (k = s.find(p)) != std::string::npos;) s.erase(k, p.size());
+        std::string w;
+        std::istringstream in(s);
+        for (std::string x; in >> x;) w += x + ' ';
+        return w;
+    };
+    CHECK(words(r.out, {std::string(PLATEAU_SOURCE_DIR) + "/", d.path.string() + "/"}) == words(excerpt, {}));
+}
