@@ -120,7 +120,7 @@ private:
     const std::vector<double>& figures(double d) {
         auto it = cache_.find(d);
         if (it != cache_.end()) return it->second;
-        const report::Candidate c = m_(variant(t_, s_, d));
+        const report::Candidate c = m_(variant(t_, s_, d, {}, true));
         std::vector<double> v;
         for (const Goal& g : goals_) v.push_back(figure_of(g, c.exposure));
         return cache_.emplace(d, std::move(v)).first->second;
@@ -136,7 +136,7 @@ private:
     // only at large doses); otherwise the candidate says why there is none.
     bool has_steady_state(double start, Found& f) {
         for (double d : {start, start * 1e-3}) {
-            const report::Candidate c = m_(variant(t_, s_, d));
+            const report::Candidate c = m_(variant(t_, s_, d, {}, true));
             if (c.exposure.steady && c.exposure.steady->found) return true;
             if (d == start) {
                 f.outcome = Outcome::Unreachable;
@@ -168,7 +168,7 @@ private:
         l.figure = share ? "time above (h)" : "trough";
         l.steady_value = share ? st.above_hours : st.trough;
         auto first = [&](double load) {
-            const report::Candidate c = m_(variant(t_, s_, f.dose, load));
+            const report::Candidate c = m_(variant(t_, s_, f.dose, load, true));
             if (c.exposure.intervals.empty()) return std::numeric_limits<double>::quiet_NaN();
             const metrics::Interval& iv = c.exposure.intervals.front();
             return share ? iv.above_hours : iv.trough;

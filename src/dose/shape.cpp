@@ -30,7 +30,8 @@ Template make_template(regimen::Regimen r) {
     return {};  // not reached
 }
 
-regimen::Regimen variant(const Template& t, const Shape& s, double amount, std::optional<double> loading) {
+regimen::Regimen variant(const Template& t, const Shape& s, double amount, std::optional<double> loading,
+                         bool brief) {
     regimen::Regimen r = t.regimen;
     const regimen::DoseSpec old = r.doses[t.series];
     regimen::DoseSpec d = old;
@@ -42,7 +43,7 @@ regimen::Regimen variant(const Template& t, const Shape& s, double amount, std::
     d.deviations.clear();  // the search is about the regimen as prescribed
     // The same span of time as the template's series, at least two doses (a steady state needs a repeat).
     const double span = static_cast<double>(old.count) * old.every;
-    d.count = std::max(2L, static_cast<long>(std::ceil(span / s.tau - 1e-9)));
+    d.count = brief ? 2L : std::max(2L, static_cast<long>(std::ceil(span / s.tau - 1e-9)));
     if (loading) {
         regimen::DoseSpec first = d;
         first.amount = *loading;
@@ -55,7 +56,7 @@ regimen::Regimen variant(const Template& t, const Shape& s, double amount, std::
         r.doses[t.series] = d;
     }
     const double series_end = d.at + static_cast<double>(d.count) * d.every;
-    r.horizon.until = std::max(r.horizon.until, series_end);
+    r.horizon.until = brief ? series_end : std::max(r.horizon.until, series_end);
     return r;
 }
 

@@ -29,6 +29,9 @@ struct Shape {
 // template's missed, late or doubled doses are left out). With a loading dose the
 // series' first dose becomes `loading` (mg, same route and infusion length) and the template's single doses are
 // left out, so the first interval is the loading dose's alone.
-regimen::Regimen variant(const Template& t, const Shape& s, double amount, std::optional<double> loading = {});
+// `brief`: only two doses of the series and a horizon ending with them — the steady-state figures do not depend
+// on the horizon, so the search measures these, and only the reported dose over the template's span.
+regimen::Regimen variant(const Template& t, const Shape& s, double amount, std::optional<double> loading = {},
+                         bool brief = false);
 
 }  // namespace plateau::dose
