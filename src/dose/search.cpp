@@ -137,7 +137,11 @@ private:
     bool has_steady_state(double start, Found& f) {
         for (double d : {start, start * 1e-3}) {
             const report::Candidate c = m_(variant(t_, s_, d, {}, true));
-            if (c.exposure.steady && c.exposure.steady->found) return true;
+            if (c.exposure.steady && c.exposure.steady->found) {
+                f = Found{};
+                f.shape = s_;
+                return true;
+            }
             if (d == start) {
                 f.outcome = Outcome::Unreachable;
                 f.message = "no steady state: " +

@@ -123,3 +123,23 @@ TEST_CASE("dose: bolus every tau, the loading dose that starts at the steady-sta
     CHECK(f.loading->first_value == Approx(f.loading->steady_value).epsilon(1e-9));
     CHECK(f.loading->steady_value == Approx(5.0).epsilon(1e-9));  // the trough the search aimed at
 }
+
+TEST_CASE("dose: doses above a saturable elimination's maximum have no steady state, and the search goes below", "[dose]") {
+    test::TempDir d("dose");
+    // Vmax = 20 mg/h (the built-in model's value): 186.52 mg every 6 h is 31 mg/h, more than can be eliminated,
+    // so the amounts keep rising (common practice, no source). Newton's method once called amounts pushed
+    // towards 1e12 mg a steady state here.
+    const std::string path = d.write(
+        "mm.toml", "id = \"mm\"\nmodel = \"one-compartment-mm-iv\"\n[[doses]]\nroute = \"iv\"\namount = \"186.52 mg\"\n"
+                   "every = \"6 h\"\ncount = 10\nover = \"1 h\"\n[targets]\noutput = \"conc\"\nabove = \"8 mg/L\"\n");
+    const report::Candidate c = dosetest::pipeline()(cli::load(path, {}, {}));
+    REQUIRE(c.exposure.steady);
+    CHECK_FALSE(c.exposure.steady->found);
+    CHECK_THAT(c.exposure.steady->why_not, Catch::Contains("keep rising"));
+    const auto s = dosetest::search(path, {}, {{6.0, 1.0}});
+    const auto& f = s.found.at(0);
+    CHECK(f.outcome == dose::Outcome::Meets);
+    CHECK(f.message.empty());
+    CHECK(f.dose < 6.0 * 20.0);  // below Vmax·τ
+    CHECK(f.at->exposure.steady->minimum.value == Approx(8.0).epsilon(1e-9));  // the threshold it aimed at
+}
