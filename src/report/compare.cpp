@@ -38,6 +38,11 @@ Figures figures_of(const Candidate& c) {
     if (!e.days.empty()) f.auc24_day1 = e.days.front().auc;
     if (e.above) {
         f.above_day1_hours = e.days.empty() ? 0.0 : e.days.front().above_hours;
+        for (std::size_t d = 0; d < e.days.size(); ++d)
+            if (!e.days[d].partial && (!f.above_worst_day_hours || e.days[d].above_hours < *f.above_worst_day_hours)) {
+                f.above_worst_day_hours = e.days[d].above_hours;
+                f.above_worst_day = static_cast<int>(d) + 1;
+            }
         f.first_reached = e.first_reached;
     }
     if (e.steady) {
@@ -133,6 +138,17 @@ std::vector<Row> comparison_rows(const std::vector<Candidate>& cs) {
         });
     if (any_above) {
         add("Time above threshold, day 1", "h", [](const Candidate&, const Figures& f) { return opt_hours(f.above_day1_hours); });
+        // The day a missed or late dose hurts most: shown when some regimen runs more than one full day.
+        const bool several_days = std::any_of(cs.begin(), cs.end(), [](const Candidate& c) {
+            return std::count_if(c.exposure.days.begin(), c.exposure.days.end(),
+                                 [](const metrics::Day& d) { return !d.partial; }) > 1;
+        });
+        if (several_days)
+            add("Time above threshold, worst day", "h", [](const Candidate&, const Figures& f) {
+                return f.above_worst_day_hours
+                           ? opt_hours(f.above_worst_day_hours) + " d" + std::to_string(f.above_worst_day)
+                           : std::string("—");
+            });
         if (any_steady)
             add("Time above threshold, ss", "% of τ", [](const Candidate&, const Figures& f) { return opt_percent(f.above_ss_fraction); });
         add("First reaches threshold", "h", [](const Candidate&, const Figures& f) {
