@@ -11,7 +11,9 @@ namespace plateau::dose {
 
 namespace {
 
-std::string mg(double d) { return report::num(d, 6) + " mg"; }
+std::string mg(double d) {
+    return report::num(d, 6) + " mg";
+}
 
 const model::Output& output_of(const regimen::Regimen& r) {
     const int i = r.targets.output.empty() ? 0 : std::max(0, r.model.output_index(r.targets.output));
@@ -57,7 +59,8 @@ public:
             if (g.side == Side::Lower && r.high > need) need = r.high, need_label = g.label, need_name = g.name;
             if (g.side == Side::Exact) exact = r.high, exact_label = g.label, f.deciding = g.name;
             // An upper goal never reached (even at the largest dose searched) sets no limit.
-            if (g.side == Side::Upper && std::isfinite(r.high) && r.low < cap) cap = r.low, cap_label = g.label, cap_name = g.name;
+            if (g.side == Side::Upper && std::isfinite(r.high) && r.low < cap)
+                cap = r.low, cap_label = g.label, cap_name = g.name;
         }
         double dose = 0.0;
         bool nearest = false;
@@ -78,8 +81,7 @@ public:
                 f.message += " (the peak leaves the window before the threshold is met)";
             else if (cap_label.rfind("window", 0) == 0)
                 f.message += " (the peak leaves the window before the lowest value enters it)";
-            f.message += "; figures at the best compromise, " + mg(dose) +
-                         ", halfway between the two on a log scale";
+            f.message += "; figures at the best compromise, " + mg(dose) + ", halfway between the two on a log scale";
         }
         measured(f, dose, round(dose, nearest));
         if (exact && q_.round_step > 0.0)
@@ -87,11 +89,12 @@ public:
             for (auto& v : f.verdicts)
                 if (v.kind == "auc24") {
                     v.met = true;
-                    v.what += " (hit at " + mg(f.exact) + "; " + mg(f.dose) + " is the nearest " +
-                              mg(q_.round_step) + " step)";
+                    v.what += " (hit at " + mg(f.exact) + "; " + mg(f.dose) + " is the nearest " + mg(q_.round_step) +
+                              " step)";
                 }
         if (exact) {
-            const Goal& g = *std::find_if(goals_.begin(), goals_.end(), [](const Goal& x) { return x.side == Side::Exact; });
+            const Goal& g =
+                *std::find_if(goals_.begin(), goals_.end(), [](const Goal& x) { return x.side == Side::Exact; });
             f.miss = std::abs(figure_of(g, f.at->exposure) - g.value) / g.value;
         }
         if (f.outcome != Outcome::Infeasible) {
@@ -144,8 +147,8 @@ private:
             }
             if (d == start) {
                 f.outcome = Outcome::Unreachable;
-                f.message = "no steady state: " +
-                            (c.exposure.steady ? c.exposure.steady->why_not : std::string("the regimen does not repeat"));
+                f.message = "no steady state: " + (c.exposure.steady ? c.exposure.steady->why_not
+                                                                     : std::string("the regimen does not repeat"));
                 f.exact = f.dose = start;
                 f.at = c;
                 f.verdicts = report::verdicts(c.regimen.targets, output_of(c.regimen), c.exposure);
@@ -166,8 +169,8 @@ private:
     // threshold) to the steady-state value at the maintenance dose.
     Loading loading(const Found& f) {
         Loading l;
-        const bool share = std::any_of(goals_.begin(), goals_.end(),
-                                       [](const Goal& g) { return g.figure == Figure::AboveShare; });
+        const bool share =
+            std::any_of(goals_.begin(), goals_.end(), [](const Goal& g) { return g.figure == Figure::AboveShare; });
         const metrics::Steady& st = *f.at->exposure.steady;
         l.figure = share ? "time above (h)" : "trough";
         l.steady_value = share ? st.above_hours : st.trough;
@@ -216,11 +219,16 @@ std::string rule(const std::vector<Goal>& goals) {
 
 std::string outcome_name(Outcome o) {
     switch (o) {
-        case Outcome::Meets: return "meets every target";
-        case Outcome::FallsShort: return "falls short";
-        case Outcome::Infeasible: return "no dose fits";
-        case Outcome::NonMonotone: return "not monotone";
-        case Outcome::Unreachable: return "unreachable";
+        case Outcome::Meets:
+            return "meets every target";
+        case Outcome::FallsShort:
+            return "falls short";
+        case Outcome::Infeasible:
+            return "no dose fits";
+        case Outcome::NonMonotone:
+            return "not monotone";
+        case Outcome::Unreachable:
+            return "unreachable";
     }
     return "";
 }

@@ -21,7 +21,7 @@ using Measure = std::function<report::Candidate(regimen::Regimen)>;
 
 struct Request {
     std::vector<Shape> shapes;
-    double round_step = 0.0;    // mg; 0 = no rounding
+    double round_step = 0.0;  // mg; 0 = no rounding
     bool loading = false;
 };
 
@@ -45,14 +45,14 @@ struct Loading {
 struct Found {
     Shape shape;
     Outcome outcome = Outcome::Unreachable;
-    double exact = 0.0;          // mg, the solved dose (or the compromise)
-    double dose = 0.0;           // mg, after rounding (= exact without rounding)
-    std::string deciding;        // label of the goal that set the dose
-    std::string message;         // plain words for anything but Meets
-    std::optional<report::Candidate> at;   // measured at `dose` (absent when nothing could be measured)
+    double exact = 0.0;                   // mg, the solved dose (or the compromise)
+    double dose = 0.0;                    // mg, after rounding (= exact without rounding)
+    std::string deciding;                 // label of the goal that set the dose
+    std::string message;                  // plain words for anything but Meets
+    std::optional<report::Candidate> at;  // measured at `dose` (absent when nothing could be measured)
     std::vector<report::Verdict> verdicts;
     std::optional<Loading> loading;
-    double miss = 0.0;           // with an exact goal: |figure at `dose` − value| / value (rounding moves it)
+    double miss = 0.0;  // with an exact goal: |figure at `dose` − value| / value (rounding moves it)
     double daily() const { return dose * 24.0 / shape.tau; }
 };
 

@@ -30,8 +30,7 @@ Template make_template(regimen::Regimen r) {
     return {};  // not reached
 }
 
-regimen::Regimen variant(const Template& t, const Shape& s, double amount, std::optional<double> loading,
-                         bool brief) {
+regimen::Regimen variant(const Template& t, const Shape& s, double amount, std::optional<double> loading, bool brief) {
     regimen::Regimen r = t.regimen;
     const regimen::DoseSpec old = r.doses[t.series];
     regimen::DoseSpec d = old;

@@ -11,8 +11,8 @@
 namespace plateau::dose {
 
 struct Template {
-    regimen::Regimen regimen;   // as loaded, with the command line's targets applied
-    std::size_t series = 0;     // index of the repeating [[doses]] entry
+    regimen::Regimen regimen;  // as loaded, with the command line's targets applied
+    std::size_t series = 0;    // index of the repeating [[doses]] entry
 };
 
 // Finds the maintenance series. Throws InputError (at the file, or at each series) when the file has no

@@ -29,7 +29,9 @@ std::string slurp(const std::string& path) {
     return std::string(std::istreambuf_iterator<char>(f), {});
 }
 
-std::string demo(const std::string& name) { return std::string(PLATEAU_SOURCE_DIR) + "/regimens/" + name; }
+std::string demo(const std::string& name) {
+    return std::string(PLATEAU_SOURCE_DIR) + "/regimens/" + name;
+}
 
 // A level that rises with the amount and then falls (a user model a dose search cannot trust).
 const char* kHumpModel = R"toml(id = "hump"
@@ -77,7 +79,8 @@ TEST_CASE("dose: an infeasible window says so with the figures at the best compr
     // form), so no dose keeps the whole range inside 4 .. 8 mg/L.
     const std::string path = d.write(
         "wide.toml",
-        "id = \"wide\"\nmodel = \"one-compartment-iv\"\n[parameters]\ncl = \"" + dosetest::g17(std::log(2.0) / 4.0 * 10.0) +
+        "id = \"wide\"\nmodel = \"one-compartment-iv\"\n[parameters]\ncl = \"" +
+            dosetest::g17(std::log(2.0) / 4.0 * 10.0) +
             " L/h\"\nv = \"10 L\"\n[[doses]]\nroute = \"iv\"\namount = \"100 mg\"\nevery = \"24 h\"\ncount = 5\n"
             "[targets]\noutput = \"conc\"\nwindow = [\"4 mg/L\", \"8 mg/L\"]\n");
     const auto s = dosetest::search(path, {}, {{24.0, 0.0}});
@@ -102,8 +105,9 @@ TEST_CASE("dose: a user model whose level falls with the dose gives a plain mess
     test::TempDir d("dose");
     d.write("hump.toml", kHumpModel);
     const std::string path =
-        d.write("t.toml", "id = \"t\"\nmodel = \"hump.toml\"\n[[doses]]\nroute = \"iv\"\namount = \"1000 mg\"\n"
-                          "every = \"12 h\"\ncount = 6\n[targets]\nabove = \"1 mg/L\"\n");
+        d.write("t.toml",
+                "id = \"t\"\nmodel = \"hump.toml\"\n[[doses]]\nroute = \"iv\"\namount = \"1000 mg\"\n"
+                "every = \"12 h\"\ncount = 6\n[targets]\nabove = \"1 mg/L\"\n");
     const auto s = dosetest::search(path, {}, {{12.0, 0.0}});
     CHECK(s.found.at(0).outcome == dose::Outcome::NonMonotone);
     CHECK_THAT(s.found.at(0).message, Catch::Contains("the figure falls from"));
@@ -157,17 +161,19 @@ TEST_CASE("dose: a bad request exits 1 with a clear message", "[dose]") {
     test::TempDir d("dose");
     cli::DoseOptions o;
     SECTION("two repeating series") {
-        o.regimen = d.write("two.toml",
-                            "id = \"two\"\nmodel = \"one-compartment-iv\"\n[[doses]]\nroute = \"iv\"\namount = \"1 g\"\n"
-                            "every = \"8 h\"\ncount = 3\n[[doses]]\nroute = \"iv\"\namount = \"1 g\"\nat = \"24 h\"\n"
-                            "every = \"12 h\"\ncount = 3\n[targets]\nabove = \"1 mg/L\"\n");
+        o.regimen =
+            d.write("two.toml",
+                    "id = \"two\"\nmodel = \"one-compartment-iv\"\n[[doses]]\nroute = \"iv\"\namount = \"1 g\"\n"
+                    "every = \"8 h\"\ncount = 3\n[[doses]]\nroute = \"iv\"\namount = \"1 g\"\nat = \"24 h\"\n"
+                    "every = \"12 h\"\ncount = 3\n[targets]\nabove = \"1 mg/L\"\n");
         const auto r = dose_cmd(o);
         CHECK(r.code == 1);
         CHECK_THAT(r.err, Catch::Contains("two.toml:3:1: error: one of 2 repeating dose series"));
     }
     SECTION("no repeating series") {
-        o.regimen = d.write("single.toml", "id = \"single\"\nmodel = \"one-compartment-iv\"\n[[doses]]\nroute = \"iv\"\n"
-                                           "amount = \"1 g\"\n[targets]\nabove = \"1 mg/L\"\n");
+        o.regimen = d.write("single.toml",
+                            "id = \"single\"\nmodel = \"one-compartment-iv\"\n[[doses]]\nroute = \"iv\"\n"
+                            "amount = \"1 g\"\n[targets]\nabove = \"1 mg/L\"\n");
         const auto r = dose_cmd(o);
         CHECK(r.code == 1);
         CHECK_THAT(r.err, Catch::Contains("no repeating dose series to vary"));
@@ -230,9 +236,10 @@ TEST_CASE("dose: an exact AUC24 is rounded to the nearest step and the closest c
 TEST_CASE("dose: a maintenance series of several clock times a day is refused", "[dose]") {
     test::TempDir d("dose");
     cli::DoseOptions o;
-    o.regimen = d.write("clock.toml", "id = \"clock\"\nmodel = \"one-compartment-iv\"\nstart_clock = \"08:00\"\n"
-                                      "[[doses]]\nroute = \"iv\"\namount = \"1 g\"\n"
-                                      "times = [\"08:00\", \"20:00\"]\ndays = 3\n[targets]\nabove = \"1 mg/L\"\n");
+    o.regimen = d.write("clock.toml",
+                        "id = \"clock\"\nmodel = \"one-compartment-iv\"\nstart_clock = \"08:00\"\n"
+                        "[[doses]]\nroute = \"iv\"\namount = \"1 g\"\n"
+                        "times = [\"08:00\", \"20:00\"]\ndays = 3\n[targets]\nabove = \"1 mg/L\"\n");
     const auto r = dose_cmd(o);
     CHECK(r.code == 1);
     CHECK_THAT(r.err, Catch::Contains("clock.toml:4:1: error: the maintenance series gives several clock times"));
