@@ -152,9 +152,23 @@ TEST_CASE("dose: the written regimen runs and compares unchanged and gives the r
 
     cli::CompareOptions co;
     co.regimens = {o.regimen, o.write};
+    co.report = d.file("both.html");
     const auto cmp = clitest::compare(co);
     CHECK(cmp.code == 0);
     CHECK(cmp.err.empty());
+    // The HTML report of the template against the found regimen names both.
+    const std::string html = slurp(co.report);
+    CHECK_THAT(html, Catch::Contains("zelmarin-q8h-4h-dose"));
+    CHECK_THAT(html, Catch::Contains("smallest daily dose meeting every target"));
+
+    // And `dose` reads it back as a template: the search finds the same maintenance dose again.
+    cli::DoseOptions again;
+    again.regimen = o.write;
+    again.round = "250mg";
+    again.json = d.file("again.json");
+    REQUIRE(dose_cmd(again).code == 0);
+    const auto aj = jsonmini::parse(slurp(again.json));
+    CHECK(jsonmini::number(aj, "candidates/0/dose_mg") == jsonmini::number(js, path + "/dose_mg"));
 }
 
 TEST_CASE("dose: a bad request exits 1 with a clear message", "[dose]") {
