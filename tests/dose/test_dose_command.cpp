@@ -3,6 +3,7 @@
 #include <catch2/catch.hpp>
 
 #include <cmath>
+#include <filesystem>
 #include <fstream>
 #include <sstream>
 
@@ -94,9 +95,12 @@ TEST_CASE("dose: an infeasible window says so with the figures at the best compr
 
     cli::DoseOptions o;
     o.regimen = path;
+    o.write = d.file("none.toml");
     const auto r = dose_cmd(o);
     CHECK(r.code == 0);
     CHECK_THAT(r.out, Catch::Contains("no dose fits"));
+    CHECK_THAT(r.out, Catch::Contains("not written to"));
+    CHECK_FALSE(std::filesystem::exists(o.write));
     CHECK_THAT(r.out, Catch::Contains("No candidate meets every target"));
     CHECK_THAT(r.out, Catch::StartsWith("CAUTION: "));
 }
