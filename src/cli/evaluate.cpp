@@ -107,6 +107,11 @@ regimen::Regimen load(const std::string& path, const std::vector<std::string>& d
     return r;
 }
 
+void print_warnings(const regimen::Regimen& r, std::ostream& err) {
+    for (const auto& w : r.warnings)
+        err << w.pos.file << ':' << w.pos.line << ':' << w.pos.col << ": warning: " << w.message << '\n';
+}
+
 report::Candidate evaluate(regimen::Regimen r, const sim::Options& opt,
                            const std::vector<std::pair<double, double>>& auc_windows) {
     report::Candidate c;

@@ -1,4 +1,5 @@
 #include "cli/commands.hpp"
+#include "cli/evaluate.hpp"
 
 #include <algorithm>
 #include <cmath>
@@ -34,8 +35,9 @@ int check_command(const CheckOptions& opt, std::ostream& out, std::ostream& err)
             }
             if (kind == "regimen") {
                 const regimen::Regimen r = input::load_regimen(f, dirs);
+                print_warnings(r, err);
                 long n = 0;
-                for (const auto& d : r.doses) n += d.count;
+                for (const auto& d : r.doses) n += d.doses();
                 out << f << ": ok (regimen " << quoted(r.id) << ", " << plural(static_cast<std::size_t>(n), "dose")
                     << ", model " << quoted(r.model.id) << ")\n";
                 return kExitOk;

@@ -89,6 +89,7 @@ int main(int argc, char** argv) {
             [](std::string& v) { return v == "all" || v == "some" ? std::string() : "expected 'all' or 'some', got '" + v + "'"; },
             "", "all"))
         ->type_name("all|some");
+    run->add_flag("--clock", run_opt.clock, "Also show times as day and clock time (the file's start_clock)");
     add_outputs(run, run_opt.json, run_opt.report, run_opt.plot, run_opt.auc);
     add_targets(run, run_opt.targets);
     add_model_dirs(run, run_opt.model_dirs);

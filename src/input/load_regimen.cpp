@@ -1,6 +1,7 @@
 // Validation of regimen files: parameter overrides, doses and series, targets, horizon, and the limits.
 #include <algorithm>
 #include <cmath>
+#include <cstdio>
 
 #include "input/clock.hpp"
 #include "input/load.hpp"
@@ -362,8 +363,24 @@ void load_horizon(Ctx& c, const Value* t, regimen::Horizon& out, const Value*& u
 }
 
 // Checks across [[doses]] and [horizon]: totals, the default horizon, doses past the end, the grid size.
-void check_schedule(Ctx& c, const std::vector<DoseEntry>& doses, regimen::Horizon& h, const Value* until_v,
-                    const Value* step_v, const Value& root) {
+// The lag of each entry's route with the regimen's parameter values (0 without a model or a lag).
+std::vector<double> entry_lags(const std::vector<DoseEntry>& doses, const model::Model* m, const regimen::Regimen& r) {
+    std::vector<double> lags(doses.size(), 0.0);
+    if (m == nullptr) return lags;
+    const std::vector<double> values = r.parameter_values();
+    for (std::size_t i = 0; i < doses.size(); ++i) {
+        const int ri = doses[i].spec.route_index;
+        if (ri < 0 || static_cast<std::size_t>(ri) >= m->routes.size()) continue;
+        const auto& route = m->routes[static_cast<std::size_t>(ri)];
+        if (!route.lag) continue;
+        const double lag = model::evaluate_constant(*m, *route.lag, values);
+        if (std::isfinite(lag) && lag > 0.0) lags[i] = lag;
+    }
+    return lags;
+}
+
+void check_schedule(Ctx& c, const std::vector<DoseEntry>& doses, const std::vector<double>& lags, regimen::Horizon& h,
+                    const Value* until_v, const Value* step_v, const Value& root, std::vector<regimen::Warning>& warnings) {
     long long total = 0;
     for (const auto& d : doses) {
         total += d.spec.doses();
@@ -377,13 +394,17 @@ void check_schedule(Ctx& c, const std::vector<DoseEntry>& doses, regimen::Horizo
     auto last_time = [](const regimen::DoseSpec& s) { return s.last_time(); };
     if (until_v == nullptr) {
         const DoseEntry* latest = nullptr;
-        double end_of_input = 0.0;
-        for (const auto& d : doses) {
+        double end_of_input = 0.0, latest_lag = 0.0;
+        for (std::size_t i = 0; i < doses.size(); ++i) {
+            const auto& d = doses[i];
             double last = last_time(d.spec);
             if (latest == nullptr || last > last_time(latest->spec) ||
-                (last == last_time(latest->spec) && d.spec.every > latest->spec.every))
+                (last == last_time(latest->spec) && d.spec.every > latest->spec.every)) {
                 latest = &d;
-            end_of_input = std::max(end_of_input, last + d.spec.over);
+                latest_lag = lags[i];
+            }
+            // A route's lag delays the input: the horizon covers the delayed last dose too.
+            end_of_input = std::max(end_of_input, last + lags[i] + d.spec.over);
         }
         if (latest == nullptr) return;
         const double last = last_time(latest->spec);
@@ -393,12 +414,18 @@ void check_schedule(Ctx& c, const std::vector<DoseEntry>& doses, regimen::Horizo
                     "doses within 10 years (" + hours(regimen::kMaxHorizonHours) + ")");
             return;
         }
-        h.until = std::max(last + std::max(latest->spec.every, 24.0), end_of_input);
+        h.until = std::max(last + latest_lag + std::max(latest->spec.every, 24.0), end_of_input);
         h.until = std::min(h.until, regimen::kMaxHorizonHours);
     } else {
-        for (const auto& d : doses) {
+        for (std::size_t i = 0; i < doses.size(); ++i) {
+            const auto& d = doses[i];
             const regimen::DoseSpec& s = d.spec;
             const double last = last_time(s);
+            if (regimen::before(last, h.until) && !regimen::before(last + lags[i], h.until)) {
+                warnings.push_back({s.pos, entry_name(d) + ": the route's lag (" + hours(lags[i]) + ") delays the last dose, at " +
+                                               hours(last) + ", to the end of the horizon or later: it has no effect"});
+                continue;
+            }
             if (regimen::before(last, h.until)) continue;
             // The first dose of the entry at or after the horizon end.
             long k = 1;
@@ -422,6 +449,38 @@ void check_schedule(Ctx& c, const std::vector<DoseEntry>& doses, regimen::Horizo
         else if (until_v != nullptr) c.value_error(*until_v, message, expected);
         else c.error(root.pos, message, expected);
     }
+}
+
+// Times the file writes as different but that are one instant to the engine, and infusions shorter than that
+// resolution (given as boluses): they run, but not quite as written, so the user is told.
+void resolution_warnings(regimen::Regimen& r) {
+    struct Written {
+        double t;
+        std::size_t entry;
+    };
+    std::vector<Written> times;
+    for (std::size_t e = 0; e < r.doses.size(); ++e) {
+        const auto& d = r.doses[e];
+        for (long n = 1; n <= d.doses(); ++n) times.push_back({d.dose_time(n), e});
+        if (d.over > 0.0 && !regimen::before(d.first_time(), d.first_time() + d.over))
+            r.warnings.push_back({d.pos, "[[doses]] entry " + std::to_string(e + 1) + ": the infusion lasts " + fmt(d.over) +
+                                             " h, shorter than the time resolution (" +
+                                             fmt(regimen::instant_tolerance(d.first_time())) +
+                                             " h): each dose is given as a bolus"});
+    }
+    std::sort(times.begin(), times.end(), [](const Written& a, const Written& b) { return a.t < b.t; });
+    for (std::size_t i = 1; i < times.size(); ++i) {
+        const Written &a = times[i - 1], &b = times[i];
+        if (a.t == b.t || !regimen::same_instant(a.t, b.t)) continue;
+        char buf[96];
+        std::snprintf(buf, sizeof buf, "doses at %.12g h and %.12g h", a.t, b.t);
+        r.warnings.push_back({r.doses[b.entry].pos, std::string(buf) +
+                                                        " are closer than the time resolution (1e-9 of the time, at "
+                                                        "least 1e-9 h) and are given at one instant"});
+        break;  // one is enough to point at the problem
+    }
+    std::stable_sort(r.warnings.begin(), r.warnings.end(),
+                     [](const regimen::Warning& a, const regimen::Warning& b) { return a.pos.line < b.pos.line; });
 }
 
 }  // namespace
@@ -503,8 +562,10 @@ regimen::Regimen load_regimen(const std::string& path, const std::vector<std::st
     bool horizon_ok = true;
     load_horizon(c, horizon, r.horizon, until_v, step_v, horizon_ok);
 
-    if (doses_ok && horizon_ok) check_schedule(c, doses, r.horizon, until_v, step_v, root);
+    if (doses_ok && horizon_ok)
+        check_schedule(c, doses, entry_lags(doses, m, r), r.horizon, until_v, step_v, root, r.warnings);
     for (auto& d : doses) r.doses.push_back(d.spec);
+    if (sink.empty()) resolution_warnings(r);
 
     throw_sorted(sink, path);
     return r;

@@ -64,6 +64,12 @@ struct Override {
     SourcePos pos;
 };
 
+// Something in the file that runs, but not as written (shown as "file:line:col: warning: ...").
+struct Warning {
+    SourcePos pos;
+    std::string message;
+};
+
 struct Regimen {
     std::string id;
     std::optional<double> start_clock;   // h after midnight at t = 0, when the file states it
@@ -75,6 +81,7 @@ struct Regimen {
     std::vector<DoseSpec> doses;
     Targets targets;
     Horizon horizon;
+    std::vector<Warning> warnings;
 
     // Model defaults with the overrides applied.
     std::vector<double> parameter_values() const;

@@ -112,7 +112,7 @@ std::vector<Row> comparison_rows(const std::vector<Candidate>& cs) {
         // verdict uses it, so the table shows it.
         const bool any_lowest = std::any_of(cs.begin(), cs.end(), [](const Candidate& c) {
             const auto& st = c.exposure.steady;
-            return st && st->found && st->minimum.value < st->trough * (1 - 1e-9);
+            return st && st->found && st->dips_below_trough();
         });
         if (any_lowest)
             add("Steady-state lowest", u, [](const Candidate& c, const Figures& f) {

@@ -195,7 +195,7 @@ void figures_table(std::ostream& out, const Candidate& c) {
             } else {
                 rows.push_back({"Steady state: trough", v(st.trough)});
             }
-            if (st.minimum.value < st.trough * (1 - 1e-9))
+            if (st.dips_below_trough())
                 rows.push_back({"Steady state: lowest", v(st.minimum.value) + ", " + t(st.minimum.time) + " " + after_cycle_start(st)});
         }
         rows.push_back({"Steady state: average", v(st.average)});
