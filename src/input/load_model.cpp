@@ -380,7 +380,7 @@ void load_derived(Ctx& c, const Value& root, Names& names, model::Model& m, std:
             }
         }
         Scope s;
-        for (const auto& q : m.parameters) s.symbols.push_back(Symbol{q.name, q.dim, true});
+        for (const auto& q : m.parameters) s.symbols.push_back(Symbol{q.name, q.dim, true, q.pos});
         for (const auto& comp : m.compartments) s.forbidden.push_back(comp.name);
         s.forbidden.push_back("t");
         s.forbidden_reason = "derived parameters are computed once per subject from parameters and covariates";
