@@ -139,7 +139,16 @@ report::Candidate evaluate(regimen::Regimen r, const sim::Options& opt,
             msg += "the horizon needs more than " + std::to_string(c.sim.budget) + " steps (the budget: " +
                    std::to_string(opt.max_steps) + " steps, 1 GiB of step polynomials): try a looser --tol or a "
                    "shorter horizon";
-        else
+        else if (c.sim.outcome == taylor::Outcome::NegativeAmount && c.sim.failed_state >= 0) {
+            const auto& m = c.regimen.model;
+            const auto idx = static_cast<std::size_t>(c.sim.failed_state);
+            const std::string& name = m.compartments[idx].name;
+            const auto& rate = m.rates[idx];
+            msg += "compartment '" + name + "' fell below zero, which no amount can: its rate '" + rate.text +
+                   "' (" + rate.pos.file + ":" + std::to_string(rate.pos.line) + ":" + std::to_string(rate.pos.col) +
+                   ") takes mass out of it while it is empty. Make the loss vanish with the amount (a factor of '" +
+                   name + "' or of a concentration of it), and check the parameter units and signs";
+        } else
             msg += explain_nonfinite(c.regimen, c.sim);
         throw NumericalError(msg);
     }

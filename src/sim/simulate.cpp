@@ -6,6 +6,7 @@
 
 #include "regimen/time.hpp"
 #include "sim/schedule.hpp"
+#include "trajectory/poly.hpp"
 
 namespace plateau::sim {
 
@@ -91,6 +92,27 @@ void note_stiffness(Simulation& sim, const model::Model& m, const taylor::Expand
 
 }  // namespace
 
+namespace {
+
+// The first time in (0, h) at which a compartment that starts the step above zero reaches zero, when it ends
+// the step below zero; h otherwise. `which` is that compartment (−1 when none).
+double emptying_time(const std::vector<double>& coeffs, std::size_t nc, std::size_t stride, double h, int& which) {
+    double first = h;
+    which = -1;
+    for (std::size_t c = 0; c < nc; ++c) {
+        const std::span<const double> p(coeffs.data() + c * stride, stride);
+        if (!(p[0] > 0.0) || traj::horner(p, h) >= 0.0) continue;
+        const std::vector<double> roots = traj::roots_in(p, 0.0, h);
+        if (!roots.empty() && roots.front() < first) {
+            first = roots.front();
+            which = static_cast<int>(c);
+        }
+    }
+    return first;
+}
+
+}  // namespace
+
 Simulation integrate_events(const model::Model& m, taylor::Stepper& stepper, const std::vector<Event>& events,
                             std::span<const double> x0, double t_end, const Options& opt) {
     Simulation sim;
@@ -158,8 +180,17 @@ Simulation integrate_events(const model::Model& m, taylor::Stepper& stepper, con
             }
             double h = r.h;
             if (!r.clipped) last_h = h;
-            const bool lands = r.clipped || h_max - h <= 1e-12 * std::max(1.0, stop);
+            bool lands = r.clipped || h_max - h <= 1e-12 * std::max(1.0, stop);
             if (lands) h = h_max;
+            // Amounts cannot fall below zero. A compartment that starts the step with something in it and ends
+            // it below zero was emptied inside the step (saturable elimination far above km is a straight line
+            // down, and the drop from km to zero takes an instant the series cannot see): the step ends where
+            // the amount reaches zero, and the amount is zero from there.
+            int emptied = -1;
+            if (const double cut = emptying_time(coeffs, nc, stride, h, emptied); cut < h) {
+                h = cut;
+                lands = false;
+            }
             sim.trajectory.append(t, h, coeffs);
             ++sim.steps;
             double largest = 0.0;
@@ -174,6 +205,16 @@ Simulation integrate_events(const model::Model& m, taylor::Stepper& stepper, con
                 }
                 largest = std::max(largest, std::abs(v));
             }
+            if (emptied >= 0) x[static_cast<std::size_t>(emptied)] = 0.0;
+            // Below zero by more than the tolerance allows, from a start at or below zero: no amount can do
+            // that, so no figure is reported (the model's rates let an empty compartment lose mass).
+            for (std::size_t c = 0; c < nc; ++c)
+                if (x[c] < -std::max(10.0 * opt.tol, 1e-12) * std::max(largest, scale)) {
+                    sim.outcome = taylor::Outcome::NegativeAmount;
+                    sim.failed_at = t + h;
+                    sim.failed_state = static_cast<int>(c);
+                    return sim;
+                }
             // Emptied compartments: an amount below the dose floor, or below the rounding unit of the largest
             // amount (it changes no other amount by more than that rounding), is set to zero. Otherwise an
             // emptied fast compartment (a gut after absorption) is followed down to 1e-300 mg, or hovers at
