@@ -58,7 +58,7 @@ std::optional<ClockTime> clock_time(Ctx& c, const Value& v, std::string_view key
         if (!d || *d < 1) return bad("expected a day number from 1 after 'day'");
         ct.day = *d;
         while (i < t.size() && t[i] == ' ') ++i;
-        if (i == t.size()) return ct;  // "day 3": midnight is not assumed; the day's start is t = 24·(d−1)
+        if (i == t.size()) return bad("a day needs a clock time, like \"day " + std::to_string(*d) + " 08:00\"");
     }
     const auto hh = digits(t, i, 2);
     if (!hh || i >= t.size() || t[i] != ':') return bad("expected HH:MM");
@@ -81,9 +81,12 @@ std::optional<ClockTime> clock_time(Ctx& c, const Value& v, std::string_view key
 }
 
 double hours_from_start(const ClockTime& ct, double start_clock) {
+    // "day d HH:MM" is on the d-th calendar day, day 1 being the one t = 0 falls on (it may come before t = 0;
+    // callers refuse that). A time without a day is its first occurrence at or after t = 0.
+    if (ct.day) return static_cast<double>(*ct.day - 1) * 24.0 + ct.hour - start_clock;
     double off = std::fmod(ct.hour - start_clock, 24.0);
     if (off < 0.0) off += 24.0;
-    return static_cast<double>(ct.day.value_or(1) - 1) * 24.0 + off;
+    return off;
 }
 
 std::string start_clock_hint() {
@@ -91,15 +94,19 @@ std::string start_clock_hint() {
            "like \"6 h\"";
 }
 
-bool daily_times(Ctx& c, const Value& entry, const std::optional<double>& start_clock, regimen::DoseSpec& spec) {
+bool daily_times(Ctx& c, const Value& entry, const std::optional<double>& start_clock, bool start_clock_written,
+                 regimen::DoseSpec& spec) {
     const Entry* times = entry.find("times");
     if (times == nullptr) return true;
     const Value& v = times->value;
     const std::string expected = "times = [\"08:00\", \"20:00\"] with days = <number of days>";
     bool ok = true;
-    if (!start_clock) {
-        c.value_error(v, "clock 'times' need the clock time at t = 0", start_clock_hint());
+    if (!start_clock && !start_clock_written) {
+        c.value_error(v, "clock 'times' need the clock time at t = 0",
+                      "start_clock = \"08:00\" at the top of the file (the clock time at t = 0)");
         ok = false;
+    } else if (!start_clock) {
+        ok = false;  // start_clock is there but malformed: reported where it is written
     }
     for (const char* other : {"at", "every", "count", "until"})
         if (const Entry* e = entry.find(other)) {
@@ -159,8 +166,8 @@ namespace {
 // The dose of `spec` a reference names: a dose number, or "day D HH:MM" for a clock-time schedule.
 std::optional<long> dose_ref(Ctx& c, const Value& v, std::string_view key, const std::optional<double>& start_clock,
                              const regimen::DoseSpec& spec) {
-    const std::string expected = "a dose number from 1 to " + std::to_string(spec.doses()) +
-                                 (start_clock ? ", or a dose time like \"day 3 22:00\"" : "");
+    const std::string expected = "a dose number from 1 to " + std::to_string(spec.doses()) + ", or its time" +
+                                 (start_clock ? " like \"day 3 22:00\" or \"16 h\"" : " like \"16 h\"");
     if (v.kind == Kind::Integer) {
         if (v.integer < 1 || v.integer > spec.doses()) {
             c.error(v.pos, "'" + std::string(key) + "': this [[doses]] entry has no dose " + std::to_string(v.integer),
@@ -171,7 +178,9 @@ std::optional<long> dose_ref(Ctx& c, const Value& v, std::string_view key, const
     }
     if (v.kind == Kind::String && looks_like_clock(v.str)) {
         if (!start_clock) {
-            c.value_error(v, "'" + std::string(key) + "': a dose time needs the clock time at t = 0", start_clock_hint());
+            c.value_error(v, "'" + std::string(key) + "': a clock time needs the clock time at t = 0",
+                          "start_clock = \"08:00\" at the top of the file, or the dose's number or its time since "
+                          "the start, like \"16 h\"");
             return std::nullopt;
         }
         auto ct = clock_time(c, v, key, true);
@@ -183,6 +192,15 @@ std::optional<long> dose_ref(Ctx& c, const Value& v, std::string_view key, const
             if (regimen::same_instant(tn, t)) return n;
             if (tn > t) break;
         }
+        c.value_error(v, "'" + std::string(key) + "': this [[doses]] entry has no dose at " + v.str, expected);
+        return std::nullopt;
+    }
+    if (v.kind == Kind::String) {
+        // A time since the start, like "16 h".
+        auto q = quantity(c, v, key, units::kTime, "16 h");
+        if (!q) return std::nullopt;
+        for (long n = 1; n <= spec.doses(); ++n)
+            if (regimen::same_instant(spec.dose_time(n), q->value)) return n;
         c.value_error(v, "'" + std::string(key) + "': this [[doses]] entry has no dose at " + v.str, expected);
         return std::nullopt;
     }

@@ -23,15 +23,17 @@ bool looks_like_clock(std::string_view text);
 // Parses a clock time; reports a located error and returns nullopt when it is malformed.
 std::optional<ClockTime> clock_time(Ctx& c, const Value& v, std::string_view key, bool allow_day);
 
-// Hours from t = 0 to the clock time: day d (default 1) is the d-th 24 h from t = 0.
+// Hours from t = 0 to the clock time: "day d HH:MM" is on the d-th calendar day, day 1 being the day of t = 0
+// (negative when it comes before t = 0); a time without a day is its first occurrence at or after t = 0.
 double hours_from_start(const ClockTime& ct, double start_clock);
 
 // "start_clock = \"08:00\"" hint for errors about clock times without a start.
 std::string start_clock_hint();
 
 // Reads `times` and `days` of a [[doses]] entry into spec (every = 24 h, offsets from the start clock).
-// Returns false on error (reported).
-bool daily_times(Ctx& c, const Value& entry, const std::optional<double>& start_clock, regimen::DoseSpec& spec);
+// Returns false on error (reported; a malformed start_clock is reported where it is written, not here).
+bool daily_times(Ctx& c, const Value& entry, const std::optional<double>& start_clock, bool start_clock_written,
+                 regimen::DoseSpec& spec);
 
 // Reads `missed`, `late` and `doubled` of a [[doses]] entry whose doses are already known. Returns false on
 // error (reported).

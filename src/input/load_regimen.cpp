@@ -89,7 +89,8 @@ Field amount_field(Ctx& c, const Value& t, regimen::DoseSpec& spec) {
     return field(c, t, "amount", kMass, "250 mg");
 }
 
-DoseEntry parse_dose(Ctx& c, const Value& t, int number, const model::Model* m, const std::optional<double>& start_clock) {
+DoseEntry parse_dose(Ctx& c, const Value& t, int number, const model::Model* m, const std::optional<double>& start_clock,
+                     bool start_clock_written) {
     DoseEntry d;
     d.number = number;
     d.spec.pos = t.pos;
@@ -126,8 +127,9 @@ DoseEntry parse_dose(Ctx& c, const Value& t, int number, const model::Model* m, 
         at.present = true;
         at.v = &at_e->value;
         if (!start_clock) {
-            c.value_error(at_e->value, "'at' is a clock time, but the file does not say the clock time at t = 0",
-                          start_clock_hint());
+            if (!start_clock_written)
+                c.value_error(at_e->value, "'at' is a clock time, but the file does not say the clock time at t = 0",
+                              start_clock_hint());
         } else if (auto ct = clock_time(c, at_e->value, "at", true)) {
             at.ok = true;
             at.value = hours_from_start(*ct, *start_clock);
@@ -176,7 +178,7 @@ DoseEntry parse_dose(Ctx& c, const Value& t, int number, const model::Model* m, 
     // How the series is given.
     const bool daily = t.find("times") != nullptr;
     if (daily) {
-        if (!typo && !daily_times(c, t, start_clock, d.spec)) ok = false;
+        if (!typo && !daily_times(c, t, start_clock, start_clock_written, d.spec)) ok = false;
     } else if (const Entry* days = t.find("days")) {
         c.error(days->key_pos, "'days' needs 'times'", "times = [\"08:00\", \"20:00\"] with days = <number of days>, "
                 "or count = <number of doses> with every", 4);
@@ -591,7 +593,8 @@ regimen::Regimen load_regimen(const std::string& path, const std::vector<std::st
                 doses_ok = false;
                 continue;
             }
-            doses.push_back(parse_dose(c, item, static_cast<int>(doses.size()) + 1, m, r.start_clock));
+            doses.push_back(parse_dose(c, item, static_cast<int>(doses.size()) + 1, m, r.start_clock,
+                                       root.find("start_clock") != nullptr));
             if (!doses.back().ok) doses_ok = false;
         }
     } else {

@@ -159,8 +159,9 @@ Exposure compute(const sim::Schedule& schedule, const sim::Simulation& sim,
             // longer than the cycle).
             st.accumulation = st.first_interval_auc > 0 ? st.auc / st.first_interval_auc
                                                         : std::numeric_limits<double>::quiet_NaN();
-            // Judged up to the end of the regimen's last full cycle (or the horizon, if sooner).
-            const double check_end = std::min(e.end, st.period_start + tau);
+            // Judged up to when the pattern's next dose would have come after the regimen's last one (or the
+            // horizon, if sooner): until then the regimen follows the pattern, after it the washout begins.
+            const double check_end = std::min(e.end, schedule.cycle->next_due);
             st.within_10pct = settled_from(tr, s, e.first_dose, check_end, st.minimum.value, st.peak.value, 0.10);
             st.within_5pct = settled_from(tr, s, e.first_dose, check_end, st.minimum.value, st.peak.value, 0.05);
             st.period = pt;

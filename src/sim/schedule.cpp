@@ -53,7 +53,7 @@ std::optional<long long> whole_ms(double hours) {
 
 std::string hours_text(double h) {
     char buf[32];
-    std::snprintf(buf, sizeof buf, "%.6g h", h);
+    std::snprintf(buf, sizeof buf, "%.10g h", h);
     return buf;
 }
 
@@ -155,6 +155,14 @@ std::optional<Cycle> final_cycle(const regimen::Regimen& r, std::string& why) {
     shortest_period(c);
     for (const auto& d : c.doses)
         if (c.dose_offsets.empty() || before(c.dose_offsets.back(), d.time)) c.dose_offsets.push_back(d.time);
+    c.last_dose = t_last;
+    c.next_due = std::numeric_limits<double>::infinity();
+    for (double off : c.dose_offsets) {
+        double k = std::floor((t_last - c.start - off) / c.period);
+        double t = c.start + off + k * c.period;
+        while (!before(t_last, t)) t += c.period;
+        c.next_due = std::min(c.next_due, t);
+    }
     return c;
 }
 

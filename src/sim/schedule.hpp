@@ -27,6 +27,9 @@ struct Cycle {
     std::vector<Dose> doses;        // the doses of one cycle, times as offsets in [0, period), sorted
     std::vector<int> entries;       // the [[doses]] entries (0-based) that form the pattern
     std::vector<double> dose_offsets;  // distinct offsets of the cycle's doses, sorted (the first is 0)
+    double last_dose = 0.0;         // the regimen's last dose of the pattern
+    double next_due = 0.0;          // when the pattern's next dose would have come after it: the actual
+                                    // regimen follows the steady-state pattern up to here
 };
 
 struct Schedule {

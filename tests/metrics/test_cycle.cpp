@@ -268,3 +268,29 @@ TEST_CASE("cycle: the minimum after the first peak cannot jump above that peak",
     const auto b = run_text("min-jump.toml", text("7.9999999 h"));
     CHECK_THAT(b.exposure.minimum.value, WithinRel(first_peak, 1e-6));
 }
+
+TEST_CASE("cycle: clock days are calendar days, and doses are named by number, time or clock time", "[metrics][cycle]") {
+    // t = 0 at 22:00: "day 2 08:00" is the next morning, 10 h later (common practice, no source: a ward's day
+    // changes at midnight). The same dose named three ways is missed three times over: all give one dose less.
+    const std::string head = std::string("id = \"calendar\"\nstart_clock = \"22:00\"\n") + kHead;
+    const auto r = run_text("calendar.toml", head + R"(
+[[doses]]
+route = "iv"
+amount = "100 mg"
+at = "day 2 08:00"
+)");
+    CHECK(r.schedule.doses.front().time == Approx(10.0));
+    for (const char* ref : {"1", "\"10 h\"", "\"day 2 08:00\""}) {
+        INFO(ref);
+        const auto m = run_text("calendar-missed.toml", head + R"(
+[[doses]]
+route = "iv"
+amount = "100 mg"
+times = ["20:00", "08:00"]
+days = 3
+missed = [)" + std::string(ref) + "]\n");
+        // Offsets from 22:00: 08:00 is 10 h (dose 1), 20:00 is 22 h (dose 2); dose 1 is the one missed.
+        REQUIRE(m.schedule.doses.size() == 5);
+        CHECK(m.schedule.doses.front().time == Approx(22.0));
+    }
+}
