@@ -187,9 +187,10 @@ int main(int argc, char** argv) {
 
     cli::ModelsOptions models_opt;
     CLI::App* models = app.add_subcommand("models", "List the available models, or describe one");
-    models->add_option("id", models_opt.id, "Model id to describe")->type_name("ID");
+    models->add_option("id", models_opt.id, "Model id, or path of a model file, to describe")->type_name("ID|FILE");
     add_model_dirs(models, models_opt.model_dirs);
-    models->footer(footer("  plateau models\n  plateau models two-compartment-iv --models ./my-models"));
+    models->footer(footer("  plateau models\n  plateau models two-compartment-iv --models ./my-models\n"
+                          "  plateau models ./my-models/my-model.toml"));
 
     cli::DoseOptions dose_opt;
     CLI::App* dose = app.add_subcommand("dose", "Find the dose per interval and infusion length that meets the targets");
