@@ -129,11 +129,16 @@ report::Candidate evaluate(regimen::Regimen r, const sim::Options& opt,
                           taylor::outcome_name(c.sim.outcome) + ") after " +
                           plural(static_cast<std::size_t>(c.sim.steps), "step") + " in " + quoted(path) +
                           "; nothing was written\n  ";
-        if (c.sim.outcome == taylor::Outcome::StepLimit)
-            msg += "the horizon needs more than " +
-                   std::to_string(sim::step_budget(opt, c.sim.trajectory.n_series(), c.sim.order)) +
-                   " steps (the budget: " + std::to_string(opt.max_steps) + " steps, 1 GiB of step polynomials): "
-                   "try a looser --tol or a shorter horizon";
+        if (c.sim.outcome == taylor::Outcome::StepLimit && !c.sim.stiff_state.empty())
+            msg += "the model is stiff here: compartment '" + c.sim.stiff_state + "' turns over at " +
+                   num(c.sim.stiff_rate) + " 1/h, and the steps (" + num(c.sim.stiff_step) + " h) are held by the "
+                   "stability of the explicit Taylor method, not by accuracy, so a looser --tol does not help; "
+                   "the horizon needs more than " + std::to_string(c.sim.budget) + " steps. Shorten the horizon, "
+                   "or check whether so fast a rate is needed";
+        else if (c.sim.outcome == taylor::Outcome::StepLimit)
+            msg += "the horizon needs more than " + std::to_string(c.sim.budget) + " steps (the budget: " +
+                   std::to_string(opt.max_steps) + " steps, 1 GiB of step polynomials): try a looser --tol or a "
+                   "shorter horizon";
         else
             msg += explain_nonfinite(c.regimen, c.sim);
         throw NumericalError(msg);

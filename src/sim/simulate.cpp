@@ -71,6 +71,24 @@ double dose_scale(const std::vector<Event>& events) {
     return big;
 }
 
+// At the step budget: when the last free step is more than twice the time constant of the fastest
+// compartment (linear models: the largest loss rate −A_ss), the step is held by the method's stability, not by
+// accuracy (accurate steps of a mode with content keep h·rate below ~1; the order-p polynomial's real stability
+// limit is h·rate ≈ 4–7 for p = 8–15). A looser tolerance then does not help.
+void note_stiffness(Simulation& sim, const model::Model& m, const taylor::Expander& ex, double h) {
+    if (!ex.linear() || !(h > 0.0)) return;
+    const std::size_t ns = static_cast<std::size_t>(ex.n_states());
+    const auto a = ex.linear_matrix();
+    std::size_t fast = 0;
+    for (std::size_t s = 1; s < ns; ++s)
+        if (-a[s * ns + s] > -a[fast * ns + fast]) fast = s;
+    const double rate = -a[fast * ns + fast];
+    if (!(rate * h > 2.0) || fast >= m.compartments.size()) return;
+    sim.stiff_state = m.compartments[fast].name;
+    sim.stiff_rate = rate;
+    sim.stiff_step = h;
+}
+
 }  // namespace
 
 Simulation integrate_events(const model::Model& m, taylor::Stepper& stepper, const std::vector<Event>& events,
@@ -91,6 +109,7 @@ Simulation integrate_events(const model::Model& m, taylor::Stepper& stepper, con
     for (double v : x0) scale = std::max(scale, std::abs(v));
     const double floor = opt.empty_decayed ? opt.dose_floor * scale : 0.0;
     const std::vector<char> drain_only = drain_only_states(stepper.expander());
+    double last_h = 0.0, window_start = 0.0;
     const double saved_floor = stepper.floor();
     stepper.set_floor(floor);
     struct Restore {  // the stepper is the caller's: leave its floor as it was
@@ -114,9 +133,20 @@ Simulation integrate_events(const model::Model& m, taylor::Stepper& stepper, con
         if (t >= t_end) break;
         const double stop = next < events.size() ? std::min(events[next].time, t_end) : t_end;
         while (t < stop) {
-            if (sim.steps >= budget) {
+            // Fail fast: past an eighth of the budget, stop when the recent step length says the horizon
+            // would need more than four budgets.
+            bool hopeless = false;
+            if (sim.steps > 0 && sim.steps % 4096 == 0) {
+                const double recent = (t - window_start) / 4096.0;
+                hopeless = sim.steps >= budget / 8 && recent > 0.0 &&
+                           static_cast<double>(sim.steps) + (t_end - t) / recent > 4.0 * static_cast<double>(budget);
+                window_start = t;
+            }
+            if (sim.steps >= budget || hopeless) {
                 sim.outcome = taylor::Outcome::StepLimit;
                 sim.failed_at = t;
+                sim.projected = hopeless;
+                note_stiffness(sim, m, stepper.expander(), last_h);
                 return sim;
             }
             const double h_max = stop - t;
@@ -127,6 +157,7 @@ Simulation integrate_events(const model::Model& m, taylor::Stepper& stepper, con
                 return sim;
             }
             double h = r.h;
+            if (!r.clipped) last_h = h;
             const bool lands = r.clipped || h_max - h <= 1e-12 * std::max(1.0, stop);
             if (lands) h = h_max;
             sim.trajectory.append(t, h, coeffs);
