@@ -31,6 +31,22 @@ for k in 1 2 3; do
   echo "mpi test: K=$k gives the single-process JSON, CSV, report and summary byte for byte"
 done
 
+# A numerical failure: with seed 11, exactly one of 12 subjects (number 8, index 7: process 1 for K = 2 and for
+# K = 3) has a gain above the blow-up threshold of tests/mpi/data/mpi-fault.toml. It is counted, the same way
+# for every K.
+fault=(population tests/mpi/data/mpi-fault-regimen.toml --cohort tests/mpi/data/mpi-fault-cohort.toml --size 12 --seed 11)
+"$ref_bin" "${fault[@]}" --json "$work/fref.json" --csv "$work/fref.csv" > /dev/null
+grep -q '^8,mpi-fault-daily,failed,' "$work/fref.csv" || fail "fault case: subject 8 did not fail"
+[ "$(grep -c ',failed,' "$work/fref.csv")" -eq 1 ] || fail "fault case: expected exactly one failed subject"
+for k in 1 2 3; do
+  "${launch[@]}" -np $k "$mpi_bin" "${fault[@]}" --json "$work/f$k.json" --csv "$work/f$k.csv" > "$work/f$k.txt" ||
+    fail "fault case, K=$k: exit code $?"
+  grep -q "1 failed numerically" "$work/f$k.txt" || fail "fault case, K=$k: the failure is not counted in the summary"
+  cmp "$work/fref.json" "$work/f$k.json" || fail "fault case, K=$k: the JSON differs"
+  cmp "$work/fref.csv" "$work/f$k.csv" || fail "fault case, K=$k: the CSV differs"
+done
+echo "mpi test: one subject failing on process 1 is counted, same outputs for K = 1, 2, 3"
+
 # A bad input: the usual message, once, and exit code 1 (from mpirun, so from every process).
 set +e
 "${launch[@]}" -np 2 "$mpi_bin" population regimens/zelmarin-pop-q8h-30min.toml --cohort regimens/zelmarin-q8h-4h.toml \
