@@ -9,6 +9,7 @@
 
 #include "cli/commands.hpp"
 #include "core/suggest.hpp"
+#include "population/distribute.hpp"
 
 namespace {
 
@@ -100,7 +101,7 @@ std::string plain_words(const CLI::ParseError& e, const CLI::App* sub) {
 
 }  // namespace
 
-int main(int argc, char** argv) {
+static int plateau_main(int argc, char** argv) {
     CLI::App app{"plateau: dosing regimens through compartment models, with peaks, troughs and AUC\n"
                  "taken exactly from the polynomials of high-order Taylor series steps."};
     app.name("plateau");
@@ -260,4 +261,31 @@ int main(int argc, char** argv) {
         return cli::kExitInternal;
     }
     return cli::kExitBadInput;
+}
+
+namespace {
+// Where the output of every process but the first goes in an MPI job: nowhere.
+struct Discard : std::streambuf {
+    int overflow(int c) override { return traits_type::not_eof(c); }
+    std::streamsize xsputn(const char*, std::streamsize n) override { return n; }
+};
+}  // namespace
+
+// In an MPI job (population/distribute.hpp) every process parses and checks the same input, so an error is
+// found by all; only process 0 prints, and all return the worst exit code. Without MPI: plateau_main as is.
+int main(int argc, char** argv) {
+    namespace population = plateau::population;
+    population::start_processes(&argc, &argv);
+    Discard discard;
+    std::streambuf* const out = std::cout.rdbuf();
+    std::streambuf* const err = std::cerr.rdbuf();
+    if (population::place().rank != 0) {
+        std::cout.rdbuf(&discard);
+        std::cerr.rdbuf(&discard);
+    }
+    const int code = population::agree_exit_code(plateau_main(argc, argv));
+    std::cout.rdbuf(out);
+    std::cerr.rdbuf(err);
+    population::stop_processes();
+    return code;
 }

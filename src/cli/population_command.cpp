@@ -12,6 +12,7 @@
 #include "cli/outputs.hpp"
 #include "cli/support.hpp"
 #include "input/load_cohort.hpp"
+#include "population/distribute.hpp"
 #include "population/reduce.hpp"
 #include "population/run.hpp"
 #include "report/compare.hpp"
@@ -118,26 +119,30 @@ int population_command(const PopulationOptions& opt, std::ostream& out, std::ost
         // The bands on the first regimen's grid (its [horizon] step), at most 1001 points per regimen.
         setup.band_points = static_cast<int>(
             std::clamp(std::round(r0.horizon.until / r0.horizon.step) + 1.0, 2.0, 1001.0));
-        const bool show = opt.progress && isatty(STDERR_FILENO) == 1;
+        // In an MPI job every process runs a share; process 0 gathers it all and alone shows progress and writes.
+        const population::Place place = population::place();
+        const bool show = opt.progress && place.rank == 0 && isatty(STDERR_FILENO) == 1;
         const auto start = std::chrono::steady_clock::now();
         std::mutex progress_mutex;
         if (show)
             setup.progress = [&](std::size_t done) {
                 std::lock_guard<std::mutex> lock(progress_mutex);
                 const double secs = std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
+                done = std::min(opt.size, done * static_cast<std::size_t>(place.ranks));   // about: process 0's share × K
                 const double rate = secs > 0 ? static_cast<double>(done) / secs : 0.0;
                 const double left = rate > 0 ? static_cast<double>(opt.size - done) / rate : 0.0;
                 std::fprintf(stderr, "\r%zu of %zu patients, %.0f per second, %.0f s left   ", done, opt.size, rate, left);
             };
         population::Result result;
         try {
-            result = population::run(loaded, setup);
+            result = population::run_shared(loaded, setup);
         } catch (const std::invalid_argument& e) {
             throw UsageError(std::string(e.what()) + (opt.cohort.empty() ? "" : " (cohort " + quoted(opt.cohort) + ")"));
         } catch (const std::runtime_error& e) {
             throw UsageError(e.what());
         }
         if (show) std::fprintf(stderr, "\r%80s\r", "");
+        if (place.rank != 0) return kExitOk;
 
         report::PopulationRun pr;
         pr.regimens = &loaded;

@@ -183,6 +183,7 @@ Result run(const std::vector<regimen::Regimen>& regimens, const Setup& setup) {
     const std::vector<double> eta_chol = model::cholesky(model::omega_matrix(m), m.variability.size());
     Worker worker{regimens, setup, slots, cov_chol, eta_chol, base, requests, result};
 
+    const std::size_t n_share = setup.first < n ? (n - setup.first + setup.stride - 1) / setup.stride : 0;
     std::atomic<std::size_t> next{0}, done{0};
     std::exception_ptr error;
     std::mutex error_mutex;
@@ -195,19 +196,19 @@ Result run(const std::vector<regimen::Regimen>& regimens, const Setup& setup) {
                 steppers.emplace_back(tape, base[r], setup.options.tol, setup.options.order);
             while (true) {
                 const std::size_t first = next.fetch_add(kChunk);
-                if (first >= n) break;
-                const std::size_t last = std::min(n, first + kChunk);
-                for (std::size_t i = first; i < last; ++i) worker.subject(i, work, steppers);
+                if (first >= n_share) break;
+                const std::size_t last = std::min(n_share, first + kChunk);
+                for (std::size_t j = first; j < last; ++j) worker.subject(setup.first + j * setup.stride, work, steppers);
                 const std::size_t d = done.fetch_add(last - first) + (last - first);
                 if (setup.progress) setup.progress(d);
             }
         } catch (...) {
             std::lock_guard<std::mutex> lock(error_mutex);
             if (!error) error = std::current_exception();
-            next.store(n);
+            next.store(n_share);
         }
     };
-    const int threads = std::max(1, std::min<int>(setup.threads, static_cast<int>((n + kChunk - 1) / kChunk)));
+    const int threads = std::max(1, std::min<int>(setup.threads, static_cast<int>((n_share + kChunk - 1) / kChunk)));
     std::vector<std::thread> pool;
     for (int t = 1; t < threads; ++t) pool.emplace_back(body);
     body();

@@ -24,6 +24,9 @@ struct Setup {
     sim::Options options;
     int band_points = 241;           // grid over each regimen's horizon for the bands
     std::function<void(std::size_t done)> progress;   // called from worker threads now and then (may be empty)
+    // This process's share (population/distribute.hpp): subjects first, first + stride, ...; the others are left
+    // empty in the result.
+    std::size_t first = 0, stride = 1;
 };
 
 enum class Status : std::uint8_t { Ok, NoSteadyState, Failed };
