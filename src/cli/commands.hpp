@@ -43,6 +43,7 @@ struct RunOptions {
     std::vector<std::string> model_dirs;  // searched after the built-in models
     std::string json;                     // "" none, "-" standard output, else a file: every figure as JSON
     bool all_intervals = false;           // --intervals all: print every dosing interval
+    bool clock = false;                   // --clock: times also as day and clock time (needs start_clock)
     std::vector<std::string> auc;         // extra AUC windows, "0h..24h"
     std::string report;                   // HTML report file
     std::string plot;                     // figure file (.png, .svg, .pdf)

@@ -32,6 +32,9 @@ int compare_command(const CompareOptions& opt, std::ostream& out, std::ostream& 
             }
         }
         if (!problems.empty()) throw InputError(problems);
+        std::vector<std::string> inputs = opt.regimens;  // no output may replace a regimen or a model file
+        for (const auto& r : loaded) inputs.push_back(r.model.path);
+        check_outputs(opt.json, opt.report, opt.plot, inputs);
         const auto& r0 = loaded.front();
         const auto& o0 = r0.model.outputs[static_cast<std::size_t>(output_of_target(r0))];
         for (const auto& r : loaded) {

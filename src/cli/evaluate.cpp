@@ -1,6 +1,7 @@
 #include "cli/evaluate.hpp"
 
 #include "cli/commands.hpp"
+#include "cli/nonfinite.hpp"
 #include "cli/support.hpp"
 #include "input/load.hpp"
 #include "regimen/time.hpp"
@@ -134,9 +135,7 @@ report::Candidate evaluate(regimen::Regimen r, const sim::Options& opt,
                    " steps (the budget: " + std::to_string(opt.max_steps) + " steps, 1 GiB of step polynomials): "
                    "try a looser --tol or a shorter horizon";
         else
-            msg += "the model's expressions are not finite there: check the rates and parameter values (a solution "
-                   "that grows without bound, a division by zero, log of zero, or x^a with a non-integer a where "
-                   "x is 0, e.g. an empty compartment)";
+            msg += explain_nonfinite(c.regimen, c.sim);
         throw NumericalError(msg);
     }
     metrics::Request req = metrics::request_from(c.regimen, opt);

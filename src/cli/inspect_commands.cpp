@@ -7,6 +7,7 @@
 
 #include "cli/support.hpp"
 #include "core/diagnostic.hpp"
+#include "core/suggest.hpp"
 #include "input/load.hpp"
 #include "input/load_cohort.hpp"
 #include "report/caution.hpp"
@@ -29,6 +30,7 @@ int check_command(const CheckOptions& opt, std::ostream& out, std::ostream& err)
             const std::string kind = input::file_kind(f);
             if (kind == "model") {
                 const model::Model m = input::load_model(f);
+                input::check_model_file_name(f, m);
                 out << f << ": ok (model " << quoted(m.id) << ", " << plural(m.parameters.size(), "parameter") << ", "
                     << plural(m.compartments.size(), "compartment") << ", " << plural(m.outputs.size(), "output")
                     << ", " << plural(m.routes.size(), "route") << ")\n";
@@ -137,9 +139,20 @@ void print_model(std::ostream& out, const model::Model& m) {
 
 int models_command(const ModelsOptions& opt, std::ostream& out, std::ostream& err) {
     return guarded(err, [&]() -> int {
+        // A path to a model file is described directly, whatever folder it is in.
+        const bool path_like = opt.id.find('/') != std::string::npos ||
+                               (opt.id.size() > 5 && opt.id.compare(opt.id.size() - 5, 5, ".toml") == 0);
+        if (path_like) {
+            if (input::file_kind(opt.id) == "regimen")
+                throw UsageError(quoted(opt.id) + " is a regimen file; expected a model id or a model file "
+                                 "('plateau run' and 'plateau check' take regimen files)");
+            print_model(out, input::load_model(opt.id));
+            return kExitOk;
+        }
         const std::vector<std::string> dirs = model_dirs(opt.model_dirs);
         std::string problems;
-        const std::vector<model::Model> models = input::list_models(dirs, &problems);
+        std::vector<std::pair<std::string, std::string>> hidden;
+        const std::vector<model::Model> models = input::list_models(dirs, &problems, &hidden);
         if (!opt.id.empty()) {
             for (const auto& m : models)
                 if (m.id == opt.id) {
@@ -148,7 +161,7 @@ int models_command(const ModelsOptions& opt, std::ostream& out, std::ostream& er
                 }
             std::vector<std::string> ids;
             for (const auto& m : models) ids.push_back(m.id);
-            err << "error: no model " << quoted(opt.id) << " in " << join(dirs) << '\n'
+            err << "error: no model " << quoted(opt.id) << did_you_mean(opt.id, ids) << " in " << join(dirs) << '\n'
                 << wrap_text("available: " + (ids.empty() ? std::string("none") : join(ids)), 2, 4, kWidth)
                        .insert(0, "  ")
                 << '\n';
@@ -160,6 +173,12 @@ int models_command(const ModelsOptions& opt, std::ostream& out, std::ostream& er
             rows.push_back({m.id, std::to_string(m.compartments.size()), join(route_names(m)), m.summary});
         out << format_table(rows, 0);
         if (models.empty()) out << "(no models found in " << join(dirs) << ")\n";
+        for (const auto& [id, path] : hidden)
+            for (const auto& m : models)
+                if (m.id == id)
+                    out << wrap_text("note: '" + id + "' is " + m.path + "; " + path + " has the same id and is not used",
+                                     0, 2, kWidth)
+                        << '\n';
         if (!problems.empty()) {
             err << "some model files could not be loaded:\n" << problems;
             return kExitBadInput;

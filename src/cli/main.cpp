@@ -1,11 +1,14 @@
 // Command-line parsing only: fills the option structs of cli/commands.hpp and calls the commands.
 #include <CLI/CLI.hpp>
 
+#include <algorithm>
 #include <exception>
 #include <iostream>
 #include <string>
+#include <vector>
 
 #include "cli/commands.hpp"
+#include "core/suggest.hpp"
 
 namespace {
 
@@ -56,6 +59,45 @@ void add_model_dirs(CLI::App* app, std::vector<std::string>& dirs) {
         ->multi_option_policy(CLI::MultiOptionPolicy::TakeAll);
 }
 
+// The parser library's wording for the mistakes people make, in plain words: an option given twice, an
+// argument that is not an option of this command (with the closest one).
+std::string plain_words(const CLI::ParseError& e, const CLI::App* sub) {
+    const std::string what = e.what();
+    const std::string at_most = ": At Most 1 required but received ";
+    if (const auto p = what.find(at_most); p != std::string::npos) {
+        const std::string name = what.substr(0, p);
+        const std::string n = what.substr(p + at_most.size());
+        return name + " given " + (n == "2" ? std::string("twice") : n + " times") + "; give it once";
+    }
+    const std::string extras = "not expected: ";
+    if (const auto p = what.find(extras); sub != nullptr && p != std::string::npos) {
+        std::vector<std::string> names;
+        for (const CLI::Option* o : sub->get_options())
+            for (const auto& l : o->get_lnames()) names.push_back("--" + l);
+        // The library lists them last first. Values after an unknown option are that option's: name the option.
+        std::vector<std::string> args;
+        for (std::size_t start = p + extras.size(); start < what.size();) {
+            const std::size_t space = std::min(what.find(' ', start), what.size());
+            args.insert(args.begin(), what.substr(start, space - start));
+            start = space + 1;
+        }
+        const bool any_option = std::any_of(args.begin(), args.end(), [](const std::string& a) { return !a.empty() && a[0] == '-'; });
+        std::string out;
+        for (const auto& arg : args) {
+            if (arg.empty() || (any_option && arg[0] != '-')) continue;
+            if (!out.empty()) out += "; ";
+            if (arg[0] == '-')
+                out += "unknown option '" + arg + "' for '" + sub->get_name() + "'" +
+                       plateau::did_you_mean(arg.substr(0, arg.find('=')), names);
+            else
+                out += "unexpected argument '" + arg + "' ('" + sub->get_name() + "' takes " +
+                       (sub->get_name() == "models" ? "one model id or model file" : "one regimen file") + ")";
+        }
+        return out;
+    }
+    return what;
+}
+
 }  // namespace
 
 int main(int argc, char** argv) {
@@ -89,6 +131,7 @@ int main(int argc, char** argv) {
             [](std::string& v) { return v == "all" || v == "some" ? std::string() : "expected 'all' or 'some', got '" + v + "'"; },
             "", "all"))
         ->type_name("all|some");
+    run->add_flag("--clock", run_opt.clock, "Also show times as day and clock time (the file's start_clock)");
     add_outputs(run, run_opt.json, run_opt.report, run_opt.plot, run_opt.auc);
     add_targets(run, run_opt.targets);
     add_model_dirs(run, run_opt.model_dirs);
@@ -144,9 +187,10 @@ int main(int argc, char** argv) {
 
     cli::ModelsOptions models_opt;
     CLI::App* models = app.add_subcommand("models", "List the available models, or describe one");
-    models->add_option("id", models_opt.id, "Model id to describe")->type_name("ID");
+    models->add_option("id", models_opt.id, "Model id, or path of a model file, to describe")->type_name("ID|FILE");
     add_model_dirs(models, models_opt.model_dirs);
-    models->footer(footer("  plateau models\n  plateau models two-compartment-iv --models ./my-models"));
+    models->footer(footer("  plateau models\n  plateau models two-compartment-iv --models ./my-models\n"
+                          "  plateau models ./my-models/my-model.toml"));
 
     cli::DoseOptions dose_opt;
     CLI::App* dose = app.add_subcommand("dose", "Find the dose per interval and infusion length that meets the targets");
@@ -177,11 +221,19 @@ int main(int argc, char** argv) {
         if (e.get_exit_code() == 0) return app.exit(e);  // --help, --version
         std::string where = "plateau";
         for (const CLI::App* sub : app.get_subcommands()) where += " " + sub->get_name();
-        std::string what = e.what();
-        if (app.get_subcommands().empty()) {
+        const CLI::App* sub = app.get_subcommands().empty() ? nullptr : app.get_subcommands().front();
+        std::string what = plain_words(e, sub);
+        if (sub == nullptr) {
             // No command was recognised: say which ones there are, in our words.
+            std::vector<std::string> commands;  // from the table of subcommands, in its order
+            std::string list;
+            for (const CLI::App* c : app.get_subcommands([](CLI::App*) { return true; })) {
+                commands.push_back(c->get_name());
+                list += (list.empty() ? "" : ", ") + c->get_name();
+            }
             what = argc > 1 && argv[1][0] != '-' ? "unknown command '" + std::string(argv[1]) + "'" : "no command given";
-            what += "; expected one of: run, compare, population, check, models, dose";
+            what += "; expected one of: " + list;
+            if (argc > 1 && argv[1][0] != '-') what += plateau::did_you_mean(argv[1], commands);
         }
         std::cerr << "error: " << what << "\n(run '" << where << " --help' for usage)\n";
         return cli::kExitBadInput;

@@ -25,7 +25,7 @@ void print_run_summary(std::ostream& out, const regimen::Regimen& r, const sim::
     const model::Model& m = r.model;
     labelled(out, "Regimen", r.id + " (" + r.path + ")");
     if (!r.about.empty()) labelled(out, "", r.about);
-    labelled(out, "Model", m.id + ": " + m.summary);
+    labelled(out, "Model", m.id + " (" + m.path + "): " + m.summary);
     if (!r.overrides.empty()) {
         std::vector<std::string> parts;
         for (const auto& o : r.overrides) {
@@ -89,7 +89,11 @@ int run_command(const RunOptions& opt, std::ostream& out, std::ostream& err) {
 
         check_outputs(opt.json, opt.report, opt.plot, {opt.regimen}, opt.csv);
         regimen::Regimen r = load(opt.regimen, opt.model_dirs, opt.targets);
+        check_outputs(opt.json, opt.report, opt.plot, {opt.regimen, r.model.path}, opt.csv);  // the model too
         print_warnings(r, err);
+        if (opt.clock && !r.start_clock)
+            throw UsageError("--clock needs the clock time at t = 0: add start_clock = \"08:00\" at the top of " +
+                             quoted(opt.regimen));
         const double horizon = r.horizon.until;
         if (!opt.csv.empty()) {
             if (has_times) {
@@ -120,22 +124,24 @@ int run_command(const RunOptions& opt, std::ostream& out, std::ostream& err) {
         if (opt.csv == "-" && opt.json == "-") throw UsageError("--csv - and --json - cannot both use standard output");
         std::ostream& summary = opt.csv == "-" || opt.json == "-" ? err : out;
         std::ostringstream written;  // "... written to ..." lines, shown before the closing caution
+        std::vector<ExtraFile> files;  // written with the other outputs, all or none
+        std::string csv_text;
         if (!opt.csv.empty()) {
             std::ostringstream csv;
             report::write_csv(csv, c.sim, c.regimen.model, times);
-            if (opt.csv == "-") {
-                out << csv.str();
-            } else {
-                write_file(opt.csv, csv.str(), "--csv");
-                written << "CSV       " << plural(times.size(), "row") << " written to " << opt.csv << '\n';
-            }
+            csv_text = csv.str();
+            if (opt.csv != "-")
+                files.push_back({opt.csv, csv_text, "--csv",
+                                 "CSV       " + plural(times.size(), "row") + " written to " + opt.csv});
         }
-        write_outputs(cs, opt.json, opt.report, opt.plot, opt.tol, written, out);
+        write_outputs(cs, opt.json, opt.report, opt.plot, opt.tol, written, out, true, {}, files);
+        if (opt.csv == "-") out << csv_text;
 
         print_run_summary(summary, c.regimen, c.sim, opt);
         summary << '\n';
         report::TextOptions to;
         to.all_intervals = opt.all_intervals;
+        if (opt.clock) to.clock = c.regimen.start_clock;
         report::write_exposure_text(summary, c.regimen, c.sim, c.exposure, to);
         if (!written.str().empty()) summary << '\n' << written.str();
         summary << '\n' << wrap_text(report::kCaution, 0, 0, kWidth) << '\n';

@@ -1,9 +1,12 @@
 // Walks over parsed expressions: dimension inference, identifiers, printing, folding and evaluation.
-// The parser bounds the nesting depth and the number of terms, so plain recursion here stays shallow.
+// The parser bounds the nesting depth; the walks below recurse only where nesting grows and loop along chains of
+// sums and products (left-deep: a 10 000-term rate is a chain 10 000 long), so their depth follows the nesting.
+#include <algorithm>
 #include <charconv>
 #include <cmath>
 #include <stdexcept>
 #include <string>
+#include <vector>
 
 #include "core/diagnostic.hpp"
 #include "expr/expr.hpp"
@@ -35,61 +38,87 @@ int precedence(const Node& n) {
     }
 }
 
-void print(const Node& n, std::string& out);
-
-void print_operand(const Node& n, bool parens, std::string& out) {
-    if (parens) out += '(';
-    print(n, out);
-    if (parens) out += ')';
+// True if `n` prints with a leading '-' (decides "-(-x)" over "--x"); follows the left operands in a loop.
+bool prints_minus_first(const Node* n) {
+    for (;;) {
+        switch (n->op) {
+            case Op::Num: return std::signbit(n->num);
+            case Op::Neg: return true;
+            case Op::Add:
+            case Op::Sub: n = n->a.get(); break;
+            case Op::Mul:
+            case Op::Div:
+                if (precedence(*n->a) < 2) return false;
+                n = n->a.get();
+                break;
+            default: return false;
+        }
+    }
 }
 
-void print(const Node& n, std::string& out) {
-    switch (n.op) {
-        case Op::Num:
-            if (std::signbit(n.num)) {
-                out += '-';
-                out += format_number(-n.num);
-            } else {
-                out += format_number(n.num);
-            }
-            return;
-        case Op::Var: out += n.name; return;
-        case Op::Add:
-        case Op::Sub:
-            print_operand(*n.a, precedence(*n.a) < 1, out);
-            out += n.op == Op::Add ? " + " : " - ";
-            print_operand(*n.b, precedence(*n.b) <= 1, out);
-            return;
-        case Op::Mul:
-        case Op::Div:
-            print_operand(*n.a, precedence(*n.a) < 2, out);
-            out += n.op == Op::Mul ? '*' : '/';
-            print_operand(*n.b, precedence(*n.b) <= 2, out);
-            return;
-        case Op::Neg: {
-            out += '-';
-            std::string inner;
-            print(*n.a, inner);
-            // "-(-x)" rather than "--x".
-            const bool parens = precedence(*n.a) < 3 || (!inner.empty() && inner.front() == '-');
-            if (parens) out += '(';
-            out += inner;
-            if (parens) out += ')';
-            return;
+// Prints with an explicit stack of pieces (a node still to print, or fixed text), not one call per node: a
+// sum of thousands of terms is a chain thousands deep.
+void print(const Node& root, std::string& out) {
+    struct Piece {
+        const Node* node;
+        const char* text;
+    };
+    std::vector<Piece> todo{{&root, nullptr}};
+    auto text = [&](const char* t) { todo.push_back({nullptr, t}); };
+    // Pushed in reverse: the stack pops the last piece first.
+    auto operand = [&](const Node& n, bool parens) {
+        if (parens) text(")");
+        todo.push_back({&n, nullptr});
+        if (parens) text("(");
+    };
+    while (!todo.empty()) {
+        const Piece piece = todo.back();
+        todo.pop_back();
+        if (piece.node == nullptr) {
+            out += piece.text;
+            continue;
         }
-        case Op::Pow:
-            // Right-associative and tighter than unary minus: (-x)^2 and (a^b)^c need parentheses, a^-b does not.
-            print_operand(*n.a, precedence(*n.a) <= 4, out);
-            out += '^';
-            print_operand(*n.b, precedence(*n.b) < 3, out);
-            return;
-        case Op::Exp:
-        case Op::Log:
-        case Op::Sqrt:
-            out += n.op == Op::Exp ? "exp(" : n.op == Op::Log ? "log(" : "sqrt(";
-            print(*n.a, out);
-            out += ')';
-            return;
+        const Node& n = *piece.node;
+        switch (n.op) {
+            case Op::Num:
+                if (std::signbit(n.num)) {
+                    out += '-';
+                    out += format_number(-n.num);
+                } else {
+                    out += format_number(n.num);
+                }
+                break;
+            case Op::Var: out += n.name; break;
+            case Op::Add:
+            case Op::Sub:
+                operand(*n.b, precedence(*n.b) <= 1);
+                text(n.op == Op::Add ? " + " : " - ");
+                operand(*n.a, precedence(*n.a) < 1);
+                break;
+            case Op::Mul:
+            case Op::Div:
+                operand(*n.b, precedence(*n.b) <= 2);
+                text(n.op == Op::Mul ? "*" : "/");
+                operand(*n.a, precedence(*n.a) < 2);
+                break;
+            case Op::Neg:
+                operand(*n.a, precedence(*n.a) < 3 || prints_minus_first(n.a.get()));
+                text("-");
+                break;
+            case Op::Pow:
+                // Right-associative and tighter than unary minus: (-x)^2 and (a^b)^c need parentheses, a^-b does not.
+                operand(*n.b, precedence(*n.b) < 3);
+                text("^");
+                operand(*n.a, precedence(*n.a) <= 4);
+                break;
+            case Op::Exp:
+            case Op::Log:
+            case Op::Sqrt:
+                text(")");
+                todo.push_back({n.a.get(), nullptr});
+                text(n.op == Op::Exp ? "exp(" : n.op == Op::Log ? "log(" : "sqrt(");
+                break;
+        }
     }
 }
 
@@ -112,14 +141,41 @@ bool is_zero_literal(const Node& n) {
     return false;
 }
 
+// Every node of `root` in source order (left operand before right), with an explicit stack.
+template <class Visit>
+void walk(const Node& root, Visit&& visit) {
+    std::vector<const Node*> todo{&root};
+    while (!todo.empty()) {
+        const Node* n = todo.back();
+        todo.pop_back();
+        if (!visit(*n)) return;
+        if (n->b) todo.push_back(n->b.get());
+        if (n->a) todo.push_back(n->a.get());
+    }
+}
+
 // The first identifier that is not constant over time, or nullptr.
-const Node* first_varying(const Node& n, const std::function<bool(std::string_view)>& is_constant) {
-    if (n.op == Op::Var) return is_constant(n.name) ? nullptr : &n;
-    if (n.a)
-        if (const Node* v = first_varying(*n.a, is_constant)) return v;
-    if (n.b)
-        if (const Node* v = first_varying(*n.b, is_constant)) return v;
-    return nullptr;
+const Node* first_varying(const Node& root, const std::function<bool(std::string_view)>& is_constant) {
+    const Node* found = nullptr;
+    walk(root, [&](const Node& n) {
+        if (n.op == Op::Var && !is_constant(n.name)) found = &n;
+        return found == nullptr;
+    });
+    return found;
+}
+
+bool is_chain(Op op) { return op == Op::Add || op == Op::Sub || op == Op::Mul || op == Op::Div; }
+
+// The binary nodes down the left side of `e` (`e` first) while they are sums, differences, products or
+// quotients, and the first operand below them. Walking these in a loop keeps the recursion as deep as the
+// nesting (parentheses, signs, powers, calls: bounded by the parser), not as long as the expression.
+const Node* left_spine(const Node& e, std::vector<const Node*>& spine) {
+    const Node* n = &e;
+    while (is_chain(n->op)) {
+        spine.push_back(n);
+        n = n->a.get();
+    }
+    return n;
 }
 
 [[noreturn]] void fail(const Node& at, std::string message, std::string expected = {}) {
@@ -128,30 +184,51 @@ const Node* first_varying(const Node& n, const std::function<bool(std::string_vi
 
 units::Dim infer_pow(const Node& e, const DimLookup& lookup, const std::function<bool(std::string_view)>& is_constant);
 
+// A dimension that left the range the checks can hold (mg^64 and beyond) is refused where it arose.
+units::Dim checked(const Node& at, units::Dim d) {
+    if (!d.in_range())
+        fail(at, "the dimension of '" + snippet(at) + "' has a power of mass, volume or time beyond " +
+                     std::to_string(units::kMaxDimExponent),
+             "powers of mg, L and h from -" + std::to_string(units::kMaxDimExponent) + " to " +
+                 std::to_string(units::kMaxDimExponent));
+    return d;
+}
+
 units::Dim infer(const Node& e, const DimLookup& lookup, const std::function<bool(std::string_view)>& is_constant) {
     switch (e.op) {
         case Op::Num: return units::kNone;
         case Op::Var: {
             const auto d = lookup(e.name);
             if (!d) fail(e, "unknown identifier '" + e.name + "'");
-            return *d;
+            return checked(e, *d);
         }
         case Op::Add:
-        case Op::Sub: {
-            const units::Dim da = infer(*e.a, lookup, is_constant);
-            const units::Dim db = infer(*e.b, lookup, is_constant);
-            if (is_zero_literal(*e.a)) return db;
-            if (is_zero_literal(*e.b)) return da;
-            if (!(da == db)) {
-                const std::string what = e.op == Op::Add
-                                             ? "cannot add " + unit_text(da) + " and " + unit_text(db)
-                                             : "cannot subtract " + unit_text(db) + " from " + unit_text(da);
-                fail(e, what + " in '" + snippet(e) + "'", "both sides in the same unit");
+        case Op::Sub:
+        case Op::Mul:
+        case Op::Div: {
+            std::vector<const Node*> spine;
+            units::Dim da = infer(*left_spine(e, spine), lookup, is_constant);
+            for (auto it = spine.rbegin(); it != spine.rend(); ++it) {
+                const Node& s = **it;
+                const units::Dim db = infer(*s.b, lookup, is_constant);
+                if (s.op == Op::Mul || s.op == Op::Div) {
+                    da = checked(s, s.op == Op::Mul ? da * db : da / db);
+                    continue;
+                }
+                if (is_zero_literal(*s.a)) {
+                    da = db;
+                    continue;
+                }
+                if (is_zero_literal(*s.b)) continue;
+                if (!(da == db)) {
+                    const std::string what = s.op == Op::Add
+                                                 ? "cannot add " + unit_text(da) + " and " + unit_text(db)
+                                                 : "cannot subtract " + unit_text(db) + " from " + unit_text(da);
+                    fail(s, what + " in '" + snippet(s) + "'", "both sides in the same unit");
+                }
             }
             return da;
         }
-        case Op::Mul: return infer(*e.a, lookup, is_constant) * infer(*e.b, lookup, is_constant);
-        case Op::Div: return infer(*e.a, lookup, is_constant) / infer(*e.b, lookup, is_constant);
         case Op::Neg: return infer(*e.a, lookup, is_constant);
         case Op::Exp:
         case Op::Log: {
@@ -193,23 +270,23 @@ units::Dim infer_pow(const Node& e, const DimLookup& lookup, const std::function
         fail(*e.b, "the exponent of a dimensioned value (" + unit_text(base) + ") must be a whole number, not " +
                        format_number(*k) + ", in '" + snippet(e) + "'",
              expected);
-    return base.pow(static_cast<int>(*k));
+    return checked(e, base.pow(static_cast<long long>(*k)));
 }
 
-void collect(const Node& n, std::vector<std::string>& out) {
-    if (n.op == Op::Var) {
-        for (const auto& s : out)
-            if (s == n.name) return;
-        out.push_back(n.name);
-        return;
-    }
-    if (n.a) collect(*n.a, out);
-    if (n.b) collect(*n.b, out);
+void collect(const Node& root, std::vector<std::string>& out) {
+    walk(root, [&](const Node& n) {
+        if (n.op == Op::Var && std::find(out.begin(), out.end(), n.name) == out.end()) out.push_back(n.name);
+        return true;
+    });
 }
 
-bool has_var(const Node& n) {
-    if (n.op == Op::Var) return true;
-    return (n.a && has_var(*n.a)) || (n.b && has_var(*n.b));
+bool has_var(const Node& root) {
+    bool found = false;
+    walk(root, [&](const Node& n) {
+        found = n.op == Op::Var;
+        return !found;
+    });
+    return found;
 }
 
 }  // namespace
@@ -240,10 +317,19 @@ double evaluate(const Node& e, const ValueLookup& value) {
     switch (e.op) {
         case Op::Num: return e.num;
         case Op::Var: return value(e.name);
-        case Op::Add: return evaluate(*e.a, value) + evaluate(*e.b, value);
-        case Op::Sub: return evaluate(*e.a, value) - evaluate(*e.b, value);
-        case Op::Mul: return evaluate(*e.a, value) * evaluate(*e.b, value);
-        case Op::Div: return evaluate(*e.a, value) / evaluate(*e.b, value);
+        case Op::Add:
+        case Op::Sub:
+        case Op::Mul:
+        case Op::Div: {
+            std::vector<const Node*> spine;
+            double x = evaluate(*left_spine(e, spine), value);
+            for (auto it = spine.rbegin(); it != spine.rend(); ++it) {
+                const Node& s = **it;
+                const double y = evaluate(*s.b, value);
+                x = s.op == Op::Add ? x + y : s.op == Op::Sub ? x - y : s.op == Op::Mul ? x * y : x / y;
+            }
+            return x;
+        }
         case Op::Pow: return std::pow(evaluate(*e.a, value), evaluate(*e.b, value));
         case Op::Neg: return -evaluate(*e.a, value);
         case Op::Exp: return std::exp(evaluate(*e.a, value));

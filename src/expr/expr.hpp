@@ -25,6 +25,11 @@ struct Node {
     Ptr a, b;              // operands (a for unary ops and functions)
     std::size_t begin = 0; // source span [begin, end) in the parsed text, 0-based byte offsets
     std::size_t end = 0;
+
+    Node() = default;
+    Node(const Node&) = default;
+    Node& operator=(const Node&) = default;
+    ~Node();  // frees long chains with a loop, not one nested call per node
 };
 
 // Parses +, -, *, /, ^ (right-associative, binds tighter than unary minus on its left: -x^2 = -(x^2)),

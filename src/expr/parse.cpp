@@ -25,7 +25,7 @@ namespace plateau::expr {
 
 namespace {
 
-constexpr int kMaxDepth = 200;
+constexpr int kMaxDepth = units::kMaxNesting;
 constexpr std::size_t kMaxTerms = 10000;
 
 const char* const kExpectValue = "a number, an identifier or '('";
@@ -203,7 +203,8 @@ private:
         DepthGuard(int& d, std::size_t offset) : depth(d) {
             if (++depth > kMaxDepth) {
                 throw TextError("expression nested too deeply (more than " + std::to_string(kMaxDepth) + " levels)",
-                                offset, 1, "at most 200 levels of parentheses, signs or powers");
+                                offset, 1,
+                                "at most " + std::to_string(kMaxDepth) + " levels of parentheses, signs or powers");
             }
         }
         ~DepthGuard() { --depth; }
@@ -367,5 +368,26 @@ private:
 }  // namespace
 
 Ptr parse(std::string_view text) { return Parser(text).run(); }
+
+Node::~Node() {
+    // A long sum is a left-deep chain: freeing it node by node through nested destructors would recurse once per
+    // term. Children only this node owns are detached first and freed from a list instead.
+    std::vector<Ptr> orphans;
+    auto take = [&](Ptr& p) {
+        if (p && p.use_count() == 1) orphans.push_back(std::move(p));
+    };
+    take(a);
+    take(b);
+    while (!orphans.empty()) {
+        Ptr p = std::move(orphans.back());
+        orphans.pop_back();
+        if (p.use_count() == 1) {
+            // Every node is made non-const by make_shared<Node>() and only viewed as const, so this is allowed.
+            Node& n = const_cast<Node&>(*p);
+            take(n.a);
+            take(n.b);
+        }
+    }
+}
 
 }  // namespace plateau::expr

@@ -159,9 +159,9 @@ void load_compartments(Ctx& c, const Value& root, Names& names, model::Model& m,
 Scope full_scope(const model::Model& m, const std::vector<std::string>& broken,
                  const std::vector<std::string>& declared) {
     Scope s;
-    for (const auto& p : m.parameters) s.symbols.push_back(Symbol{p.name, p.dim, true});
-    for (const auto& comp : m.compartments) s.symbols.push_back(Symbol{comp.name, units::kMass, false});
-    s.symbols.push_back(Symbol{"t", units::kTime, false});
+    for (const auto& p : m.parameters) s.symbols.push_back(Symbol{p.name, p.dim, true, p.pos});
+    for (const auto& comp : m.compartments) s.symbols.push_back(Symbol{comp.name, units::kMass, false, {}});
+    s.symbols.push_back(Symbol{"t", units::kTime, false, {}});
     s.unknown_dim = broken;
     s.listed = declared;
     for (const auto& comp : m.compartments) s.listed.push_back(comp.name);
@@ -172,7 +172,7 @@ Scope full_scope(const model::Model& m, const std::vector<std::string>& broken,
 Scope parameter_scope(const model::Model& m, const std::vector<std::string>& broken,
                       const std::vector<std::string>& declared) {
     Scope s;
-    for (const auto& p : m.parameters) s.symbols.push_back(Symbol{p.name, p.dim, true});
+    for (const auto& p : m.parameters) s.symbols.push_back(Symbol{p.name, p.dim, true, p.pos});
     for (const auto& comp : m.compartments) s.forbidden.push_back(comp.name);
     s.forbidden.push_back("t");
     s.forbidden_reason = "route fractions and lags may use parameters only";
@@ -192,7 +192,8 @@ void load_rates(Ctx& c, const Value& root, const Scope& scope, const Names& name
         int idx = m.compartment_index(e.key);
         if (idx < 0 && names.is_refused(e.key)) continue;
         if (idx < 0) {
-            c.error(e.key_pos, "rate for unknown compartment '" + e.key + "'", one_of(names_of(m.compartments)),
+            c.error(e.key_pos, "rate for unknown compartment '" + e.key + "'" + did_you_mean(e.key, names_of(m.compartments)),
+                    one_of(names_of(m.compartments)),
                     static_cast<int>(e.key.size()));
             continue;
         }
@@ -203,7 +204,8 @@ void load_rates(Ctx& c, const Value& root, const Scope& scope, const Names& name
             r.text = e.value.str;
             r.pos = string_pos(c.doc, e.value, 0);
         }
-        auto parsed = expression(c, e.value, e.key, scope);
+        const Want want{units::kAmountRate, "this rate"};
+        auto parsed = expression(c, e.value, e.key, scope, false, want);
         if (!parsed) continue;
         auto zero = expr::fold_number(*parsed->e);
         if (!(zero && *zero == 0.0) && parsed->dim != units::kAmountRate) {
@@ -211,8 +213,10 @@ void load_rates(Ctx& c, const Value& root, const Scope& scope, const Names& name
                           "the rate of compartment '" + e.key + "' is " + units::dim_name(parsed->dim) +
                               ", not an amount per time",
                           "an amount per time (mg/h), like \"-cl/v*central\"");
+            c.wants_notes(parsed->e, scope, want);
             continue;
         }
+        c.used_well(*parsed->e);
         r.expr = parsed->e;
     }
     for (std::size_t i = 0; i < m.compartments.size(); ++i) {
@@ -260,13 +264,17 @@ void load_outputs(Ctx& c, const Value& root, Names& names, const Scope& scope, m
                 o.text = ex->value.str;
                 o.pos = string_pos(c.doc, ex->value, 0);
             }
-            auto parsed = expression(c, ex->value, "expr", scope);
+            std::optional<Want> want;
+            if (unit_ok) want = Want{o.unit.dim, "output '" + e.key + "' (" + o.unit_text + ")"};
+            auto parsed = expression(c, ex->value, "expr", scope, false, want);
             if (parsed && unit_ok && parsed->dim != o.unit.dim) {
                 c.value_error(ex->value,
                               "output '" + e.key + "' is " + units::dim_name(parsed->dim) + ", but its unit '" + o.unit_text +
                                   "' is " + units::dim_name(o.unit.dim),
                               "an expression that is " + units::dim_name(o.unit.dim) + ", or a unit that matches it");
+                c.wants_notes(parsed->e, scope, *want);
             } else if (parsed) {
+                if (unit_ok) c.used_well(*parsed->e);
                 o.expr = parsed->e;
             }
         }
@@ -306,7 +314,8 @@ void load_routes(Ctx& c, const Value& root, const Scope& scope, const Names& nam
         if (const Value* into = get_string(c, e.value, "into", true, where, "into = \"<compartment>\"")) {
             r.into = m.compartment_index(into->str);
             if (r.into < 0 && !names.is_refused(into->str))
-                c.value_error(*into, "route '" + e.key + "' goes into unknown compartment '" + into->str + "'",
+                c.value_error(*into, "route '" + e.key + "' goes into unknown compartment '" + into->str + "'" +
+                                         did_you_mean(into->str, compartments),
                               one_of(compartments));
         }
         if (const Entry* f = e.value.find("fraction")) {
@@ -371,7 +380,7 @@ void load_derived(Ctx& c, const Value& root, Names& names, model::Model& m, std:
             }
         }
         Scope s;
-        for (const auto& q : m.parameters) s.symbols.push_back(Symbol{q.name, q.dim, true});
+        for (const auto& q : m.parameters) s.symbols.push_back(Symbol{q.name, q.dim, true, q.pos});
         for (const auto& comp : m.compartments) s.forbidden.push_back(comp.name);
         s.forbidden.push_back("t");
         s.forbidden_reason = "derived parameters are computed once per subject from parameters and covariates";
@@ -641,6 +650,7 @@ model::Model build_model(Ctx& c) {
     load_outputs(c, root, names, scope, m);
     load_routes(c, root, parameter_scope(m, broken, declared), names, m);
     load_variability(c, root, m, broken);
+    add_dimension_notes(c);
     return m;
 }
 
@@ -649,6 +659,7 @@ model::Model build_model(Ctx& c) {
 model::Model load_model(const std::string& path) {
     Document doc = read_document(path);
     DiagnosticSink sink;
+    detail::hoist_misplaced_keys(doc, sink, {"id", "summary"});
     detail::Ctx c{doc, sink};
     model::Model m = detail::build_model(c);
     detail::throw_sorted(sink, path);

@@ -109,7 +109,7 @@ DoseEntry parse_dose(Ctx& c, const Value& t, int number, const model::Model* m, 
         if (m != nullptr) {
             d.spec.route_index = m->route_index(route->str);
             if (d.spec.route_index < 0) {
-                c.value_error(*route, "unknown route '" + route->str + "'",
+                c.value_error(*route, "unknown route '" + route->str + "'" + did_you_mean(route->str, routes),
                               routes.empty() ? "a route, but the model defines none in [routes]" : one_of(routes));
                 ok = false;
             }
@@ -245,7 +245,7 @@ void load_overrides(Ctx& c, const Value& table, const model::Model& m, regimen::
     for (const Entry& e : table.entries) {
         int idx = m.parameter_index(e.key);
         if (idx < 0) {
-            c.error(e.key_pos, "unknown parameter '" + e.key + "' in model '" + m.id + "'", one_of(names),
+            c.error(e.key_pos, "unknown parameter '" + e.key + "' in model '" + m.id + "'" + did_you_mean(e.key, names), one_of(names),
                     static_cast<int>(e.key.size()));
             continue;
         }
@@ -318,7 +318,7 @@ void load_targets(Ctx& c, const Value* t, const model::Model& m, regimen::Target
     if (t != nullptr) {
         if (const Value* o = get_string(c, *t, "output", false, "[targets]", "output = \"<output name>\"")) {
             idx = m.output_index(o->str);
-            if (idx < 0) c.value_error(*o, "unknown output '" + o->str + "' in model '" + m.id + "'", one_of(names));
+            if (idx < 0) c.value_error(*o, "unknown output '" + o->str + "' in model '" + m.id + "'" + did_you_mean(o->str, names), one_of(names));
         }
     }
     if (idx < 0) return;
@@ -415,12 +415,24 @@ std::vector<double> entry_lags(const std::vector<DoseEntry>& doses, const model:
 void check_schedule(Ctx& c, const std::vector<DoseEntry>& doses, const std::vector<double>& lags, regimen::Horizon& h,
                     const Value* until_v, const Value* step_v, const Value& root, std::vector<regimen::Warning>& warnings) {
     long long total = 0;
+    double mass = 0.0;
     for (const auto& d : doses) {
         total += d.spec.doses();
         if (total > regimen::kMaxDoses) {
             c.error(d.spec.pos,
                     "too many doses: " + std::to_string(total) + " in [[doses]] entries 1 to " + std::to_string(d.number),
                     "at most " + std::to_string(regimen::kMaxDoses) + " doses in all [[doses]] entries");
+            return;
+        }
+        // Totals and times derived from the entries must stay finite numbers, or reports print "inf".
+        mass += d.spec.amount * static_cast<double>(d.spec.count);
+        const double last = d.spec.at + static_cast<double>(d.spec.count - 1) * d.spec.every + d.spec.over;
+        if (!std::isfinite(mass) || !std::isfinite(last)) {
+            const std::string what = !std::isfinite(mass)           ? "the total amount of [[doses]] entries 1 to "
+                                     : !std::isfinite(d.spec.over) ? "the infusion length (amount / rate) of [[doses]] entry "
+                                                                   : "the last dose's end of [[doses]] entry ";
+            c.error(d.spec.pos, what + std::to_string(d.number) + " is beyond what a double can hold",
+                    "amounts, rates and times whose totals stay below 1e308 (mg, h)");
             return;
         }
     }
@@ -508,8 +520,9 @@ void resolution_warnings(regimen::Regimen& r) {
         char buf[96];
         std::snprintf(buf, sizeof buf, "doses at %.12g h and %.12g h", a.t, b.t);
         r.warnings.push_back({r.doses[b.entry].pos, std::string(buf) +
-                                                        " are closer than the time resolution (1e-9 of the time, at "
-                                                        "least 1e-9 h) and are given at one instant"});
+                                                        " are closer than the time resolution (" + fmt(regimen::kInstantRelative) +
+                                                        " of the time, at least " + fmt(regimen::kInstantRelative) +
+                                                        " h) and are given at one instant"});
         break;  // one is enough to point at the problem
     }
     std::stable_sort(r.warnings.begin(), r.warnings.end(),
@@ -524,6 +537,7 @@ regimen::Regimen load_regimen(const std::string& path, const std::vector<std::st
     using namespace detail;
     Document doc = read_document(path);
     DiagnosticSink sink;
+    hoist_misplaced_keys(doc, sink, {"id", "model", "about", "start_clock"});
     Ctx c{doc, sink};
     regimen::Regimen r;
     r.path = path;

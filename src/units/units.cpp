@@ -1,14 +1,17 @@
 // Unit expressions and quantities: a small recursive-descent parser over the unit names below.
 #include "units/units.hpp"
 
+#include <algorithm>
 #include <charconv>
 #include <cmath>
 #include <cstddef>
 #include <string>
 #include <string_view>
 #include <system_error>
+#include <vector>
 
 #include "core/diagnostic.hpp"
+#include "core/suggest.hpp"
 
 namespace plateau::units {
 namespace {
@@ -24,18 +27,27 @@ struct NamedUnit {
     Dim dim;
 };
 
-// Factors into mg, L and h.
+// Factors into mg, L and h. Time also under the spelled-out names people type ("2 hours", "30 mins").
 constexpr NamedUnit kUnits[] = {
-    {"ng", 1e-6, kMass},         {"ug", 1e-3, kMass},        {"\xC2\xB5g", 1e-3, kMass},
-    {"\xCE\xBCg", 1e-3, kMass},  {"mcg", 1e-3, kMass},       {"mg", 1.0, kMass},
-    {"g", 1e3, kMass},           {"kg", 1e6, kMass},         {"mL", 1e-3, kVolume},
-    {"ml", 1e-3, kVolume},       {"dL", 0.1, kVolume},       {"dl", 0.1, kVolume},
-    {"L", 1.0, kVolume},         {"l", 1.0, kVolume},        {"s", 1.0 / 3600.0, kTime},
-    {"sec", 1.0 / 3600.0, kTime}, {"min", 1.0 / 60.0, kTime}, {"h", 1.0, kTime},
-    {"hr", 1.0, kTime},          {"d", 24.0, kTime},         {"day", 24.0, kTime},
-    {"days", 24.0, kTime},       {"wk", 168.0, kTime},       {"week", 168.0, kTime},
-    {"%", 0.01, kNone},
+    {"ng", 1e-6, kMass},          {"ug", 1e-3, kMass},           {"\xC2\xB5g", 1e-3, kMass},
+    {"\xCE\xBCg", 1e-3, kMass},   {"mcg", 1e-3, kMass},          {"mg", 1.0, kMass},
+    {"g", 1e3, kMass},            {"kg", 1e6, kMass},            {"mL", 1e-3, kVolume},
+    {"ml", 1e-3, kVolume},        {"dL", 0.1, kVolume},          {"dl", 0.1, kVolume},
+    {"L", 1.0, kVolume},          {"l", 1.0, kVolume},           {"s", 1.0 / 3600.0, kTime},
+    {"sec", 1.0 / 3600.0, kTime}, {"min", 1.0 / 60.0, kTime},    {"mins", 1.0 / 60.0, kTime},
+    {"minute", 1.0 / 60.0, kTime}, {"minutes", 1.0 / 60.0, kTime}, {"h", 1.0, kTime},
+    {"hr", 1.0, kTime},           {"hrs", 1.0, kTime},           {"hour", 1.0, kTime},
+    {"hours", 1.0, kTime},        {"d", 24.0, kTime},            {"day", 24.0, kTime},
+    {"days", 24.0, kTime},        {"wk", 168.0, kTime},          {"week", 168.0, kTime},
+    {"weeks", 168.0, kTime},      {"%", 0.01, kNone},
 };
+
+// The unit names, for "did you mean" suggestions.
+std::vector<std::string> unit_names() {
+    std::vector<std::string> out;
+    for (const NamedUnit& nu : kUnits) out.emplace_back(nu.name);
+    return out;
+}
 
 bool is_letter(char c) { return (c >= 'a' && c <= 'z') || (c >= 'A' && c <= 'Z'); }
 bool is_digit(char c) { return c >= '0' && c <= '9'; }
@@ -51,6 +63,14 @@ std::string quoted(std::string_view s) {
     std::string q(1, '\'');
     q.append(s).push_back('\'');
     return q;
+}
+
+// Quoted, cut to its first 40 bytes (on a character boundary) when longer: messages stay one line.
+std::string shorten(std::string_view s) {
+    if (s.size() <= 40) return quoted(s);
+    std::size_t n = 40;
+    while (n > 0 && (static_cast<unsigned char>(s[n]) & 0xC0) == 0x80) --n;
+    return quoted(s.substr(0, n)) + "...";
 }
 
 class Parser {
@@ -83,6 +103,8 @@ public:
 
     // expression := term { ('*' | '·' | '/') term }, left-associative.
     Unit expression() {
+        skip_spaces();
+        const std::size_t start = pos_;
         Unit u = term();
         for (;;) {
             skip_spaces();
@@ -99,6 +121,7 @@ public:
             }
             const Unit r = term();
             u = divide ? Unit{u.factor / r.factor, u.dim / r.dim} : Unit{u.factor * r.factor, u.dim * r.dim};
+            check_size(u, start);
         }
     }
 
@@ -115,6 +138,8 @@ private:
 
     // term := primary [ '^' integer ]
     Unit term() {
+        skip_spaces();
+        const std::size_t base = pos_;
         Unit u = primary();
         skip_spaces();
         if (!peek("^")) return u;
@@ -137,7 +162,22 @@ private:
         if (negative) k = -k;
         double f = 1.0;
         for (int i = 0; i < (k < 0 ? -k : k); ++i) f *= u.factor;
-        return Unit{k < 0 ? 1.0 / f : f, u.dim.pow(k)};
+        const Unit r{k < 0 ? 1.0 / f : f, u.dim.pow(k)};
+        check_size(r, base);
+        return r;
+    }
+
+    // A unit whose exponents or factor leave what a double and the dimension check can hold is refused where it
+    // was built (from `begin` to the current position), e.g. ((L^12)^12)^12 or (kg^12)^12.
+    void check_size(const Unit& u, std::size_t begin) const {
+        if (!u.dim.in_range())
+            fail("the unit " + shorten(text_.substr(begin, pos_ - begin)) + " has a power of mass, volume or time beyond " +
+                     std::to_string(kMaxDimExponent),
+                 begin, pos_ - begin, "powers of mg, L and h from -" + std::to_string(kMaxDimExponent) + " to " +
+                                          std::to_string(kMaxDimExponent));
+        if (!std::isfinite(u.factor) || u.factor == 0.0)
+            fail("the unit " + shorten(text_.substr(begin, pos_ - begin)) + " is too large or too small to represent",
+                 begin, pos_ - begin, "a unit whose size in mg, L and h is between 1e-308 and 1e308");
     }
 
     // primary := name | '%' | '(' expression ')' | '1' (only before '/')
@@ -147,8 +187,14 @@ private:
             fail("missing unit at the end of " + quoted(text_), text_.size(), 1, kUnitHint);
         const char c = text_[pos_];
         if (c == '(') {
+            // Nesting is bounded like a model expression's, so a deep unit is an error rather than a stack overflow.
+            if (++depth_ > kMaxNesting)
+                fail(shorten(text_) + " is nested more than " + std::to_string(kMaxNesting) +
+                         " parentheses deep",
+                     pos_, 1, "at most " + std::to_string(kMaxNesting) + " levels of parentheses");
             ++pos_;
             const Unit u = expression();
+            --depth_;
             skip_spaces();
             if (!peek(")")) fail("missing ')' in " + quoted(text_), pos_, 1, "')'");
             ++pos_;
@@ -170,7 +216,8 @@ private:
                     return Unit{nu.factor, nu.dim};
                 }
             }
-            fail("unknown unit " + quoted(name) + " in " + quoted(text_), pos_, name.size(), kUnitHint);
+            fail("unknown unit " + quoted(name) + " in " + quoted(text_) + did_you_mean(name, unit_names()), pos_,
+                 name.size(), kUnitHint);
         }
         const std::string_view tok = token();
         fail("expected a unit, got " + quoted(tok) + " in " + quoted(text_), pos_, tok.size(), kUnitHint);
@@ -178,6 +225,7 @@ private:
 
     std::string_view text_;
     std::size_t pos_;
+    int depth_ = 0;
 };
 
 // True if a decimal literal that from_chars reported out of range is too large (false: too close to zero).

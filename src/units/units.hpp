@@ -6,7 +6,15 @@
 
 namespace plateau::units {
 
+// Largest exponent of a base dimension (mg^64) a unit or an expression may reach; beyond it is an error.
+inline constexpr int kMaxDimExponent = 64;
+
+// Deepest nesting of parentheses, signs and powers in a unit or a model expression (both parsers recurse).
+inline constexpr int kMaxNesting = 200;
+
 // Exponents of the three base dimensions: mass (amount), volume, time.
+// The arithmetic saturates just past ±kMaxDimExponent instead of overflowing, so a chain of products and powers
+// can never wrap around to a legal dimension; callers check in_range() and report where it went out.
 struct Dim {
     int mass = 0;
     int volume = 0;
@@ -14,9 +22,17 @@ struct Dim {
 
     bool operator==(const Dim&) const = default;
     bool dimensionless() const { return mass == 0 && volume == 0 && time == 0; }
-    Dim operator*(const Dim& o) const { return {mass + o.mass, volume + o.volume, time + o.time}; }
-    Dim operator/(const Dim& o) const { return {mass - o.mass, volume - o.volume, time - o.time}; }
-    Dim pow(int k) const { return {mass * k, volume * k, time * k}; }
+    bool in_range() const { return fits(mass) && fits(volume) && fits(time); }
+    Dim operator*(const Dim& o) const { return {sat(1LL * mass + o.mass), sat(1LL * volume + o.volume), sat(1LL * time + o.time)}; }
+    Dim operator/(const Dim& o) const { return {sat(1LL * mass - o.mass), sat(1LL * volume - o.volume), sat(1LL * time - o.time)}; }
+    Dim pow(long long k) const { return {sat(mass * sat(k)), sat(volume * sat(k)), sat(time * sat(k))}; }
+
+private:
+    static constexpr bool fits(int e) { return e >= -kMaxDimExponent && e <= kMaxDimExponent; }
+    static constexpr int sat(long long e) {
+        constexpr long long cap = kMaxDimExponent + 1;
+        return static_cast<int>(e > cap ? cap : e < -cap ? -cap : e);
+    }
 };
 
 inline constexpr Dim kNone{0, 0, 0};
@@ -43,7 +59,8 @@ struct Quantity {
 
 // Parses a unit expression: products '*', quotients '/', integer powers '^' (e.g. "h^-1", "L^2"),
 // a leading "1/" ("1/h"), '%' (0.01, dimensionless) and the empty string (dimensionless).
-// Mass: ng ug µg mcg mg g kg. Volume: mL dL L (also l, ml, dl). Time: s min h d day wk (also hr, sec).
+// Mass: ng ug µg mcg mg g kg. Volume: mL dL L (also l, ml, dl). Time: s min h d wk, also sec, mins, minute(s),
+// hr(s), hour(s), day(s), week(s).
 // Throws plateau::TextError (offset within `text`) naming what was given and what is accepted.
 Unit parse_unit(std::string_view text);
 

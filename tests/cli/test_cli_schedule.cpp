@@ -102,3 +102,19 @@ at = "20 h"
     // The 6 g bolus at 20 h: C just after = 6000/40 + the two 100 mg doses decayed 10 h (closed form, computed).
     CHECK(number_after(r.out, "Peak") == Approx(150.0 + 5.0 * std::exp(-1.0)).epsilon(1e-5));
 }
+
+TEST_CASE("cli: run --clock shows times as day and clock time", "[cli][cycle]") {
+    cli::RunOptions o;
+    o.regimen = std::string(PLATEAU_SOURCE_DIR) + "/examples/zelmarin-missed-dose/missed-evening.toml";
+    o.clock = true;
+    Result r = run(o);
+    REQUIRE(r.code == cli::kExitOk);
+    // t = 0 is 06:00 on day 1: the last peak, 30 min into the 22:00 infusion of day 4, is at 88.5 h.
+    CHECK(contains(r.out, "at 88.5 h (day 4 22:30)"));
+    CHECK(contains(r.out, "day 4 22:00"));
+    // Without start_clock in the file, --clock is refused.
+    o.regimen = write("no-clock.toml", std::string("id = \"no-clock\"\n") + kHead + series(100, 0, 8, 3));
+    r = run(o);
+    CHECK(r.code == cli::kExitBadInput);
+    CHECK(contains(r.err, "--clock needs the clock time at t = 0"));
+}

@@ -5,17 +5,25 @@
 #
 #   browser_check.sh PLATEAU_BINARY SOURCE_DIR
 #
-# Exits 77 (ctest: skipped) when Chromium is not installed (Debian: apt-get install chromium); set
-# PLATEAU_CHROMIUM to use another Chromium binary. Chromium runs with networking features off and a fresh
-# profile in a temporary folder, which is removed at the end.
+# The first figure is also rendered alone, at its own size, and its screenshot must be far from blank: the
+# inline SVG draws in a real browser.
+#
+# Uses Debian's chromium-headless-shell (scripts/install-deps --test installs it), else chromium; set
+# PLATEAU_CHROMIUM to use another binary. Exits 77 (ctest: skipped) when none is installed. Chromium runs with
+# networking features off and a fresh profile in a temporary folder, which is removed at the end.
 set -euo pipefail
 
 plateau=${1:?usage: browser_check.sh PLATEAU_BINARY SOURCE_DIR}
 src=${2:?usage: browser_check.sh PLATEAU_BINARY SOURCE_DIR}
-chromium=${PLATEAU_CHROMIUM:-/usr/bin/chromium}
+chromium=${PLATEAU_CHROMIUM:-}
+if [[ -z "$chromium" ]]; then
+  for c in /usr/bin/chromium-headless-shell /usr/bin/chromium; do
+    [[ -x "$c" ]] && chromium=$c && break
+  done
+fi
 
-if [[ ! -x "$chromium" ]]; then
-  echo "SKIP: no Chromium at $chromium (apt-get install chromium, or set PLATEAU_CHROMIUM): report not rendered"
+if [[ -z "$chromium" || ! -x "$chromium" ]]; then
+  echo "SKIP: no Chromium (apt-get install chromium-headless-shell, or set PLATEAU_CHROMIUM): report not rendered"
   exit 77
 fi
 
@@ -68,6 +76,24 @@ report=$(size_of "$work/report.png")
 echo "screenshot sizes: empty page $blank bytes, report $report bytes"
 # A page of text, tables and figures compresses far worse than a white one: at least 10 times the bytes.
 ((report > 10 * blank)) || fail "the report's screenshot ($report bytes) is not clearly larger than a blank page ($blank bytes)"
+
+# The figure area: the first inline SVG figure of the report alone on a page of its size (900 x 420), against a
+# blank page of that size. Axes, labels and curves make its screenshot several times larger than a white one.
+{
+  printf '<!DOCTYPE html>\n<html lang="en"><head><meta charset="utf-8"><title>figure</title>'
+  printf '<style>body{margin:0} svg{display:block;width:900px;height:420px}</style></head><body>\n'
+  awk '/<svg/ {f = 1} f {print} /<\/svg>/ {if (f) exit}' "$work/report.html" | sed 's/^.*<svg/<svg/'
+  printf '</body></html>\n'
+} >"$work/figure.html"
+grep -q '</svg>' "$work/figure.html" || fail "the report has no inline SVG figure"
+grep -q '<path\|<polyline' "$work/figure.html" || fail "the report's first figure draws no curve"
+render "file://$work/blank.html" blank-figure --screenshot="$work/blank-figure.png" --window-size=900,420
+render "file://$work/figure.html" figure --screenshot="$work/figure.png" --window-size=900,420
+[[ -s "$work/figure.png" ]] || fail "no screenshot of the figure"
+blank_figure=$(size_of "$work/blank-figure.png")
+figure=$(size_of "$work/figure.png")
+echo "figure area: empty $blank_figure bytes, first figure $figure bytes"
+((figure > 5 * blank_figure)) || fail "the figure's screenshot ($figure bytes) is close to blank ($blank_figure bytes)"
 
 # Printed: a PDF of several pages that holds the caution and the comparison table.
 render "file://$work/report.html" print --no-pdf-header-footer --print-to-pdf="$work/report.pdf"

@@ -14,6 +14,8 @@
 
 namespace plateau::jsonmini {
 
+struct Member;
+
 struct Value {
     enum class Kind { null, boolean, number, string, array, object };
     Kind kind = Kind::null;
@@ -21,18 +23,27 @@ struct Value {
     double n = 0.0;
     std::string s;
     std::vector<Value> items;                        // array
-    std::vector<std::pair<std::string, Value>> keys; // object, in file order
+    std::vector<Member> keys;  // object, in file order (a vector of an incomplete type: allowed since C++17)
 
     bool is_null() const { return kind == Kind::null; }
 
     // The member `k` of an object, or nullptr.
-    const Value* member(std::string_view k) const {
-        if (kind != Kind::object) return nullptr;
-        for (const auto& [name, v] : keys)
-            if (name == k) return &v;
-        return nullptr;
-    }
+    const Value* member(std::string_view k) const;
 };
+
+// Not std::pair<std::string, Value>: a pair needs Value complete where it is named, which clang refuses inside
+// Value itself.
+struct Member {
+    std::string name;
+    Value value;
+};
+
+inline const Value* Value::member(std::string_view k) const {
+    if (kind != Kind::object) return nullptr;
+    for (const auto& [name, v] : keys)
+        if (name == k) return &v;
+    return nullptr;
+}
 
 class Parser {
 public:
@@ -118,7 +129,7 @@ private:
                 space();
                 std::string k = string_body();
                 expect(':');
-                v.keys.emplace_back(std::move(k), value());
+                v.keys.push_back(Member{std::move(k), value()});
             } while (eat(','));
             expect('}');
         } else if (c == '[') {

@@ -1,0 +1,50 @@
+// libFuzzer targets for the model and the regimen loader (one source, FUZZ_REGIMEN chooses). The input is written
+// to a file in a private temporary folder and loaded as a user's file would be; an InputError (bad input,
+// located) is the expected answer; a crash, a sanitizer report, a hang or another exception is a finding.
+// Regimens find their model among the built-in models (model = "zelmarin") and the test models.
+#include <cstddef>
+#include <cstdint>
+#include <cstdio>
+#include <filesystem>
+#include <string>
+#include <vector>
+
+#include <unistd.h>
+
+#include "core/diagnostic.hpp"
+#include "input/load.hpp"
+
+namespace {
+
+const std::string& work_file() {
+    static const std::string path = [] {
+        const auto dir = std::filesystem::temp_directory_path() / ("plateau-fuzz-" + std::to_string(::getpid()));
+        std::filesystem::create_directories(dir);
+        return (dir / "input.toml").string();
+    }();
+    return path;
+}
+
+}  // namespace
+
+extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size) {
+    const std::string& path = work_file();
+    if (std::FILE* f = std::fopen(path.c_str(), "wb")) {
+        if (size > 0) std::fwrite(data, 1, size, f);
+        std::fclose(f);
+    } else {
+        return 0;
+    }
+    try {
+#ifdef FUZZ_REGIMEN
+        static const std::vector<std::string> dirs{std::string(PLATEAU_SOURCE_DIR) + "/models",
+                                                   std::string(PLATEAU_SOURCE_DIR) + "/tests/data/models"};
+        (void)plateau::input::load_regimen(path, dirs);
+#else
+        (void)plateau::input::load_model(path);
+#endif
+    } catch (const plateau::InputError& e) {
+        if (e.diagnostics().empty()) std::abort();  // an error says what was wrong
+    }
+    return 0;
+}
