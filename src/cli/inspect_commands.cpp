@@ -9,6 +9,7 @@
 #include "core/diagnostic.hpp"
 #include "core/suggest.hpp"
 #include "input/load.hpp"
+#include "input/load_cohort.hpp"
 #include "report/caution.hpp"
 #include "report/csv.hpp"
 #include "units/units.hpp"
@@ -42,6 +43,14 @@ int check_command(const CheckOptions& opt, std::ostream& out, std::ostream& err)
                 for (const auto& d : r.doses) n += d.doses();
                 out << f << ": ok (regimen " << quoted(r.id) << ", " << plural(static_cast<std::size_t>(n), "dose")
                     << ", model " << quoted(r.model.id) << ")\n";
+                return kExitOk;
+            }
+            if (kind == "cohort") {
+                const population::Cohort c = input::load_cohort(f);
+                out << f << ": ok (cohort " << quoted(c.id) << ", "
+                    << (c.rows.empty() ? plural(c.covariates.size(), "covariate")
+                                       : plural(c.rows.size(), "row") + " of " + plural(c.columns.size(), "covariate"))
+                    << ")\n";
                 return kExitOk;
             }
             err << f << ": error: cannot tell whether this is a model or a regimen file\n"

@@ -124,11 +124,14 @@ int population_command(const PopulationOptions& opt, std::ostream& out, std::ost
         const bool show = opt.progress && place.rank == 0 && isatty(STDERR_FILENO) == 1;
         const auto start = std::chrono::steady_clock::now();
         std::mutex progress_mutex;
+        double last_shown = -1.0;
         if (show)
             setup.progress = [&](std::size_t done) {
                 std::lock_guard<std::mutex> lock(progress_mutex);
                 const double secs = std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
                 done = std::min(opt.size, done * static_cast<std::size_t>(place.ranks));   // about: process 0's share × K
+                if (secs - last_shown < 0.2 && done < opt.size) return;   // at most five lines a second
+                last_shown = secs;
                 const double rate = secs > 0 ? static_cast<double>(done) / secs : 0.0;
                 const double left = rate > 0 ? static_cast<double>(opt.size - done) / rate : 0.0;
                 std::fprintf(stderr, "\r%zu of %zu patients, %.0f per second, %.0f s left   ", done, opt.size, rate, left);

@@ -147,6 +147,7 @@ std::string file_kind(const std::string& path) {
     Document doc = read_document(path);
     if (doc.root.find("compartments") != nullptr) return "model";
     if (doc.root.find("doses") != nullptr || doc.root.find("model") != nullptr) return "regimen";
+    if (doc.root.find("covariates") != nullptr || doc.root.find("resample") != nullptr) return "cohort";
     return "";
 }
 

@@ -111,8 +111,8 @@ void load_distribution(Ctx& c, const Entry& e, population::Cohort& out) {
         return x ? &x->value : nullptr;
     };
     if (d.dist == population::Dist::Normal) {
-        const Value* mean = need("mean", "\"80 mL/min\"");
-        const Value* sd = need("sd", "\"25 mL/min\"");
+        const Value* mean = need("mean", "\"<mean, with its unit>\"");
+        const Value* sd = need("sd", "\"<standard deviation, in the unit of the mean>\"");
         const std::optional<double> m = mean ? cov_value(c, *mean, "mean", d, dim) : std::nullopt;
         const std::optional<double> so = sd ? cov_value(c, *sd, "sd", d, dim) : std::nullopt;
         const double s = so.value_or(-1.0);
@@ -125,7 +125,7 @@ void load_distribution(Ctx& c, const Entry& e, population::Cohort& out) {
             d.sd = s;
         }
     } else if (d.dist == population::Dist::LogNormal) {
-        const Value* median = need("median", "\"75 kg\"");
+        const Value* median = need("median", "\"<median, with its unit>\"");
         const Value* cv = need("cv", "\"20 %\"");
         const std::optional<double> mo = median ? cov_value(c, *median, "median", d, dim) : std::nullopt;
         const double m = mo.value_or(-1.0);

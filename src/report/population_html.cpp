@@ -62,8 +62,12 @@ plot::Figure overview_figure(const PopulationRun& p) {
     plot::Figure f;
     f.title = "Median and 5–95 % of " + std::to_string(p.size) + " virtual patients";
     f.ylabel = o.name + " (" + o.unit_text + ")";
+    // With more than two regimens the 5–95 % lines would hide the medians: medians only (the report has the bands).
+    const bool ranges = p.regimens->size() <= 2;
+    if (!ranges) f.title = "Median of " + std::to_string(p.size) + " virtual patients";
     for (std::size_t r = 0; r < p.regimens->size(); ++r) {
         f.curves.push_back(band_curve(p, r, 2, letter_for(r) + " median"));
+        if (!ranges) continue;
         f.curves.push_back(band_curve(p, r, 0, letter_for(r) + " 5 %"));
         f.curves.push_back(band_curve(p, r, 4, letter_for(r) + " 95 %"));
     }

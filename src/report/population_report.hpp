@@ -35,8 +35,9 @@ void write_population_json(std::ostream& out, const PopulationRun& p);
 void write_population_csv(std::ostream& out, const PopulationRun& p);
 std::string population_html(const PopulationRun& p);
 
-// Median with the 25–75 % and 5–95 % ranges over time, per regimen (one figure with every regimen when `all`).
+// Median with the 25–75 % and 5–95 % ranges over time of one regimen.
 plot::Figure band_figure(const PopulationRun& p, std::size_t regimen);
+// Every regimen's median (with its 5–95 % range when there are at most two regimens): the --plot figure.
 plot::Figure overview_figure(const PopulationRun& p);
 // PTA against the threshold (log2 scale) per regimen; empty curves when no curve was asked.
 plot::Figure pta_figure(const PopulationRun& p);

@@ -91,3 +91,14 @@ TEST_CASE("population command: JSON and CSV hold every regimen, target and patie
     CHECK_THAT(hs.str(), Catch::Contains("Probability of target attainment"));
     CHECK_THAT(out.str(), Catch::Contains("Probability of target attainment (PTA), with the Wilson score 95 % interval"));
 }
+
+TEST_CASE("population command: check takes cohort files", "[population][cli]") {
+    test::TempDir dir("pop-check");
+    cli::CheckOptions o;
+    o.files = {kSrc + "/cohorts/zelmarin-adults.toml",
+               dir.write("bad.toml", "id = \"x\"\n[covariates]\nwt = { dist = \"normal\", mean = \"70 kg\", range = [\"40 kg\", \"100 kg\"] }\n")};
+    std::ostringstream out, err;
+    CHECK(cli::check_command(o, out, err) == cli::kExitBadInput);
+    CHECK_THAT(out.str(), Catch::Contains("zelmarin-adults.toml: ok (cohort 'zelmarin-adults', 3 covariates)"));
+    CHECK_THAT(err.str(), Catch::Contains("bad.toml:3:6: error: missing key 'sd' in covariate 'wt'"));
+}

@@ -222,3 +222,32 @@ TEST_CASE("population: errors in cohort files are located", "[population][diagno
         CHECK_THAT(errors_of(path, true), Catch::Contains(c.expect));
     }
 }
+
+TEST_CASE("population: errors in [patient] and in overrides of covariates are located", "[population][diagnostics]") {
+    test::TempDir dir("patient-errors");
+    struct Case {
+        const char* body;
+        const char* expect;
+    };
+    const Case cases[] = {
+        {"[patient]\nage = \"40\"\n", "r.toml:4:1: error: unknown covariate 'age' for model 'zelmarin-renal'"},
+        {"[patient]\nq = \"4 L/h\"\n", "r.toml:4:1: error: 'q' is a parameter of model 'zelmarin-renal', not a covariate"},
+        {"[patient]\nwt = \"82 L\"\n", "r.toml:4:10: error: expected an amount (mass), got '82 L' (volume)"},
+        {"[patient]\nht = \"6 ft\"\n", "r.toml:4:8: error: expected a height like '178 cm' or '1.78 m'"},
+        {"[parameters]\ncl = \"8 L/h\"\n", "r.toml:4:1: error: 'cl' is a derived parameter of model 'zelmarin-renal'"},
+        {"[parameters]\ncrcl = \"50 mL/min\"\n", "r.toml:4:1: error: 'crcl' is a covariate of model 'zelmarin-renal'"},
+    };
+    for (const auto& c : cases) {
+        const std::string path =
+            dir.write("r.toml", std::string("id = \"p\"\nmodel = \"zelmarin-renal\"\n") + c.body +
+                                    "[[doses]]\nroute = \"iv\"\namount = \"1 g\"\n");
+        INFO(c.body);
+        std::string msg;
+        try {
+            input::load_regimen(path, {kSrc + "/models"});
+        } catch (const InputError& e) {
+            msg = format_diagnostics(e.diagnostics());
+        }
+        CHECK_THAT(msg, Catch::Contains(c.expect));
+    }
+}
