@@ -3,6 +3,7 @@
 // command line into these structs; tests call the functions directly.
 #pragma once
 
+#include <cstdint>
 #include <ostream>
 #include <stdexcept>
 #include <string>
@@ -42,6 +43,7 @@ struct RunOptions {
     std::vector<std::string> model_dirs;  // searched after the built-in models
     std::string json;                     // "" none, "-" standard output, else a file: every figure as JSON
     bool all_intervals = false;           // --intervals all: print every dosing interval
+    bool clock = false;                   // --clock: times also as day and clock time (needs start_clock)
     std::vector<std::string> auc;         // extra AUC windows, "0h..24h"
     std::string report;                   // HTML report file
     std::string plot;                     // figure file (.png, .svg, .pdf)
@@ -58,6 +60,22 @@ struct CompareOptions {
     TargetOverrides targets;
     std::vector<std::string> model_dirs;
     std::string date;                     // "" = today (tests fix it for stable output)
+};
+
+struct PopulationOptions {
+    std::vector<std::string> regimens;
+    std::string cohort;                   // cohort file; "" = the regimen's patient for everyone
+    std::size_t size = 1000;
+    std::uint64_t seed = 1;
+    int threads = 1;
+    double tol = 1e-10;
+    std::string json, csv, report, plot;  // "" none; json and csv may be "-" (standard output)
+    std::string pta_curve;                // "0.25mg/L..64mg/L": PTA at doubling thresholds
+    std::string thresholds;               // threshold distribution file: expected attainment
+    TargetOverrides targets;
+    std::vector<std::string> model_dirs;
+    std::string date;                     // "" = today
+    bool progress = true;                 // a progress line on standard error when it is a terminal
 };
 
 struct CheckOptions {
@@ -85,6 +103,7 @@ struct DoseOptions {
 
 int run_command(const RunOptions& opt, std::ostream& out, std::ostream& err);
 int compare_command(const CompareOptions& opt, std::ostream& out, std::ostream& err);
+int population_command(const PopulationOptions& opt, std::ostream& out, std::ostream& err);
 int check_command(const CheckOptions& opt, std::ostream& out, std::ostream& err);
 int models_command(const ModelsOptions& opt, std::ostream& out, std::ostream& err);
 int dose_command(const DoseOptions& opt, std::ostream& out, std::ostream& err);

@@ -26,6 +26,7 @@ int compare_command(const CompareOptions& opt, std::ostream& out, std::ostream& 
         for (const auto& path : opt.regimens) {
             try {
                 loaded.push_back(load(path, opt.model_dirs, opt.targets));
+                print_warnings(loaded.back(), err);
             } catch (const InputError& e) {
                 problems.insert(problems.end(), e.diagnostics().begin(), e.diagnostics().end());
             }

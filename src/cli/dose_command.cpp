@@ -31,8 +31,9 @@ std::vector<double> duration_list(const std::string& text, std::string_view what
                              "; expected durations separated by commas, e.g. 6h,8h,12h");
         const double h = parse_duration(piece, what);
         if (h < 0.0 || (!zero_ok && h == 0.0))
-            throw UsageError(std::string(what) + ": expected " + (zero_ok ? "0 (bolus) or a positive time" : "a positive time") +
-                             ", got " + cli::quoted(piece));
+            throw UsageError(std::string(what) + ": expected " +
+                             (zero_ok ? "0 (bolus) or a positive time" : "a positive time") + ", got " +
+                             cli::quoted(piece));
         if (h > regimen::kMaxHorizonHours)
             throw UsageError(std::string(what) + ": " + cli::quoted(piece) + " is longer than the 10-year limit");
         out.push_back(h);
@@ -52,20 +53,21 @@ double amount_of(const std::string& text, std::string_view what) {
     }
     if (q.dim.dimensionless()) q.dim = units::kMass;  // a plain number is mg
     if (q.dim != units::kMass || !(q.value > 0.0))
-        throw UsageError(std::string(what) + ": expected a positive amount like 250mg or 0.5g, got " + cli::quoted(text));
+        throw UsageError(std::string(what) + ": expected a positive amount like 250mg or 0.5g, got " +
+                         cli::quoted(text));
     return q.value;
 }
 
 // The recommended candidate as a regimen: the template's model, parameters, targets and horizon, the found doses.
-regimen::Regimen recommended_regimen(const dose::Template& t, const dose::Found& f) {
+regimen::Regimen recommended_regimen(const dose::Template& t, const dose::Found& f, const std::string& rule) {
     std::optional<double> load;
     if (f.loading && f.loading->problem.empty()) load = f.loading->dose;
     regimen::Regimen r = dose::variant(t, f.shape, f.dose, load);
     r.id = t.regimen.id + "-dose";
     r.about = num(f.dose, 6) + " mg every " + dose::duration_text(f.shape.tau) +
-              (f.shape.over > 0 ? " as " + dose::duration_text(f.shape.over) + " infusions" : " as a bolus") +
-              (load ? ", " + num(*load, 6) + " mg loading dose first" : "") + " (the dose search's " +
-              dose::kRule + ", from " + t.regimen.id + ")";
+              (f.shape.over > 0 ? " as infusions over " + dose::duration_text(f.shape.over) : " as a bolus") +
+              (load ? ", " + num(*load, 6) + " mg loading dose first" : "") + " (the dose search's " + rule +
+              ", from " + t.regimen.id + ")";
     return r;
 }
 
@@ -85,11 +87,12 @@ int dose_command(const DoseOptions& opt, std::ostream& out, std::ostream& err) {
             if (opt.write == "-") throw UsageError("--write: expected a file name, got '-'");
             if (same(opt.write, opt.regimen))
                 throw UsageError("--write: " + cli::quoted(opt.write) + " is an input file; it would be overwritten");
-            if (same(opt.write, opt.json)) throw UsageError("--write and --json name the same file " + cli::quoted(opt.write));
+            if (same(opt.write, opt.json))
+                throw UsageError("--write and --json name the same file " + cli::quoted(opt.write));
             const fs::path dir = fs::path(opt.write).parent_path();
             if (!dir.empty() && !fs::is_directory(dir, e3))
-                throw UsageError("--write: cannot write " + cli::quoted(opt.write) + ": the folder " + cli::quoted(dir.string()) +
-                                 " does not exist");
+                throw UsageError("--write: cannot write " + cli::quoted(opt.write) + ": the folder " +
+                                 cli::quoted(dir.string()) + " does not exist");
             if (fs::is_directory(opt.write, e3))
                 throw UsageError("--write: cannot write " + cli::quoted(opt.write) + ": it is a folder");
         }
@@ -111,8 +114,8 @@ int dose_command(const DoseOptions& opt, std::ostream& out, std::ostream& err) {
                              "or --auc24 (a value or a range), or set one in [targets]");
 
         const regimen::DoseSpec& spec = r.doses[t.series];
-        const std::vector<double> taus =
-            opt.intervals.empty() ? std::vector<double>{spec.every} : duration_list(opt.intervals, "--intervals", false);
+        const std::vector<double> taus = opt.intervals.empty() ? std::vector<double>{spec.every}
+                                                               : duration_list(opt.intervals, "--intervals", false);
         const std::vector<double> overs =
             opt.over.empty() ? std::vector<double>{spec.over} : duration_list(opt.over, "--over", true);
         for (double tau : taus)
@@ -129,15 +132,21 @@ int dose_command(const DoseOptions& opt, std::ostream& out, std::ostream& err) {
         rep.request = q;
         rep.tolerance = opt.tol;
         rep.recommended = dose::rank(found);
+        if (!spec.deviations.empty())
+            rep.notes.push_back(
+                "The template's missed, late or doubled doses are left out: candidates are measured "
+                "as prescribed.");
         if (q.loading && r.doses.size() > 1)
-            rep.notes.push_back("With --loading, the template's single doses are left out: the loading dose is the "
-                                "first dose of each candidate.");
+            rep.notes.push_back(
+                "With --loading, the template's single doses are left out: the loading dose is the "
+                "first dose of each candidate.");
 
         std::ostringstream written;
         if (!opt.json.empty()) {
             std::ostringstream js;
             dose::write_json(js, rep, found);
-            if (opt.json == "-") out << js.str();
+            if (opt.json == "-")
+                out << js.str();
             else {
                 write_file(opt.json, js.str(), "--json");
                 written << "JSON      written to " << opt.json << '\n';
@@ -147,7 +156,8 @@ int dose_command(const DoseOptions& opt, std::ostream& out, std::ostream& err) {
             if (rep.recommended < 0) {
                 written << "Regimen   not written to " << opt.write << ": no candidate meets every target\n";
             } else {
-                const regimen::Regimen best = recommended_regimen(t, found[static_cast<std::size_t>(rep.recommended)]);
+                const regimen::Regimen best =
+                    recommended_regimen(t, found[static_cast<std::size_t>(rep.recommended)], dose::rule(goals));
                 write_file(opt.write,
                            dose::regimen_text(best, "Written by plateau dose from " + r.path +
                                                         ". Research simulation only, not clinical advice."),

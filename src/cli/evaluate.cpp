@@ -1,6 +1,7 @@
 #include "cli/evaluate.hpp"
 
 #include "cli/commands.hpp"
+#include "cli/nonfinite.hpp"
 #include "cli/support.hpp"
 #include "input/load.hpp"
 #include "regimen/time.hpp"
@@ -107,6 +108,11 @@ regimen::Regimen load(const std::string& path, const std::vector<std::string>& d
     return r;
 }
 
+void print_warnings(const regimen::Regimen& r, std::ostream& err) {
+    for (const auto& w : r.warnings)
+        err << w.pos.file << ':' << w.pos.line << ':' << w.pos.col << ": warning: " << w.message << '\n';
+}
+
 report::Candidate evaluate(regimen::Regimen r, const sim::Options& opt,
                            const std::vector<std::pair<double, double>>& auc_windows) {
     report::Candidate c;
@@ -129,9 +135,7 @@ report::Candidate evaluate(regimen::Regimen r, const sim::Options& opt,
                    " steps (the budget: " + std::to_string(opt.max_steps) + " steps, 1 GiB of step polynomials): "
                    "try a looser --tol or a shorter horizon";
         else
-            msg += "the model's expressions are not finite there: check the rates and parameter values (a solution "
-                   "that grows without bound, a division by zero, log of zero, or x^a with a non-integer a where "
-                   "x is 0, e.g. an empty compartment)";
+            msg += explain_nonfinite(c.regimen, c.sim);
         throw NumericalError(msg);
     }
     metrics::Request req = metrics::request_from(c.regimen, opt);

@@ -2,6 +2,7 @@
 // simulate, compute the exposure figures.
 #pragma once
 
+#include <ostream>
 #include <string>
 #include <utility>
 #include <vector>
@@ -32,6 +33,9 @@ void apply_targets(regimen::Regimen& r, const TargetOverrides& t);
 // Loads a regimen (models searched in the built-in directory, then `model_dirs`) and applies the overrides.
 regimen::Regimen load(const std::string& path, const std::vector<std::string>& model_dirs,
                       const TargetOverrides& targets);
+
+// "file:line:col: warning: ..." for each of the regimen's warnings.
+void print_warnings(const regimen::Regimen& r, std::ostream& err);
 
 // Simulates and measures one regimen. A numerical failure throws NumericalError with the time and the reason.
 report::Candidate evaluate(regimen::Regimen r, const sim::Options& opt,

@@ -1,4 +1,5 @@
 #include "cli/commands.hpp"
+#include "cli/evaluate.hpp"
 
 #include <algorithm>
 #include <cmath>
@@ -6,6 +7,7 @@
 
 #include "cli/support.hpp"
 #include "core/diagnostic.hpp"
+#include "core/suggest.hpp"
 #include "input/load.hpp"
 #include "report/caution.hpp"
 #include "report/csv.hpp"
@@ -27,6 +29,7 @@ int check_command(const CheckOptions& opt, std::ostream& out, std::ostream& err)
             const std::string kind = input::file_kind(f);
             if (kind == "model") {
                 const model::Model m = input::load_model(f);
+                input::check_model_file_name(f, m);
                 out << f << ": ok (model " << quoted(m.id) << ", " << plural(m.parameters.size(), "parameter") << ", "
                     << plural(m.compartments.size(), "compartment") << ", " << plural(m.outputs.size(), "output")
                     << ", " << plural(m.routes.size(), "route") << ")\n";
@@ -34,8 +37,9 @@ int check_command(const CheckOptions& opt, std::ostream& out, std::ostream& err)
             }
             if (kind == "regimen") {
                 const regimen::Regimen r = input::load_regimen(f, dirs);
+                print_warnings(r, err);
                 long n = 0;
-                for (const auto& d : r.doses) n += d.count;
+                for (const auto& d : r.doses) n += d.doses();
                 out << f << ": ok (regimen " << quoted(r.id) << ", " << plural(static_cast<std::size_t>(n), "dose")
                     << ", model " << quoted(r.model.id) << ")\n";
                 return kExitOk;
@@ -67,9 +71,34 @@ void print_model(std::ostream& out, const model::Model& m) {
     if (!m.path.empty()) out << "file: " << m.path << '\n';
 
     std::vector<std::vector<std::string>> rows;
-    for (const auto& p : m.parameters)
-        rows.push_back({p.name, with_unit(units::to_unit(p.value, p.unit), p.unit_text, kParameterDigits), p.about});
-    out << "\nparameters\n" << format_table(rows, 2);
+    for (const auto kind : {model::ParamKind::Fixed, model::ParamKind::Covariate, model::ParamKind::Derived}) {
+        rows.clear();
+        for (const auto& p : m.parameters) {
+            if (p.kind != kind) continue;
+            std::vector<std::string> row{p.name, with_unit(units::to_unit(p.value, p.unit), p.unit_text, kParameterDigits)};
+            if (kind == model::ParamKind::Derived) row.push_back("= " + p.expr_text);
+            row.push_back(p.about);
+            rows.push_back(row);
+        }
+        if (kind == model::ParamKind::Fixed) out << "\nparameters\n" << format_table(rows, 2);
+        else if (!rows.empty())
+            out << (kind == model::ParamKind::Covariate ? "\ncovariates (typical values)\n"
+                                                        : "\nderived parameters (typical values; once per subject)\n")
+                << format_table(rows, 2);
+    }
+    rows.clear();
+    for (std::size_t i = 0; i < m.variability.size(); ++i) {
+        const auto& v = m.variability[i];
+        const char* kind = v.spread == model::Spread::LogNormal ? "log-normal, CV" :
+                           v.spread == model::Spread::LogitNormal ? "logit-normal, sd on the logit scale" : "normal, sd";
+        std::string corr;
+        for (std::size_t j = 0; j < m.variability.size() && !m.correlation.empty(); ++j)
+            if (j != i && m.correlation[i * m.variability.size() + j] != 0.0)
+                corr += (corr.empty() ? "correlation " : ", ") + m.variability[j].name + " " +
+                        num(m.correlation[i * m.variability.size() + j], 4);
+        rows.push_back({v.name, v.text, std::string(kind) + ", ω = " + num(v.omega, 4) + (corr.empty() ? "" : "; " + corr)});
+    }
+    if (!rows.empty()) out << "\nbetween-subject variability\n" << format_table(rows, 2);
 
     rows.clear();
     for (const auto& c : m.compartments) rows.push_back({c.name, c.unit_text});
@@ -101,9 +130,20 @@ void print_model(std::ostream& out, const model::Model& m) {
 
 int models_command(const ModelsOptions& opt, std::ostream& out, std::ostream& err) {
     return guarded(err, [&]() -> int {
+        // A path to a model file is described directly, whatever folder it is in.
+        const bool path_like = opt.id.find('/') != std::string::npos ||
+                               (opt.id.size() > 5 && opt.id.compare(opt.id.size() - 5, 5, ".toml") == 0);
+        if (path_like) {
+            if (input::file_kind(opt.id) == "regimen")
+                throw UsageError(quoted(opt.id) + " is a regimen file; expected a model id or a model file "
+                                 "('plateau run' and 'plateau check' take regimen files)");
+            print_model(out, input::load_model(opt.id));
+            return kExitOk;
+        }
         const std::vector<std::string> dirs = model_dirs(opt.model_dirs);
         std::string problems;
-        const std::vector<model::Model> models = input::list_models(dirs, &problems);
+        std::vector<std::pair<std::string, std::string>> hidden;
+        const std::vector<model::Model> models = input::list_models(dirs, &problems, &hidden);
         if (!opt.id.empty()) {
             for (const auto& m : models)
                 if (m.id == opt.id) {
@@ -112,7 +152,7 @@ int models_command(const ModelsOptions& opt, std::ostream& out, std::ostream& er
                 }
             std::vector<std::string> ids;
             for (const auto& m : models) ids.push_back(m.id);
-            err << "error: no model " << quoted(opt.id) << " in " << join(dirs) << '\n'
+            err << "error: no model " << quoted(opt.id) << did_you_mean(opt.id, ids) << " in " << join(dirs) << '\n'
                 << wrap_text("available: " + (ids.empty() ? std::string("none") : join(ids)), 2, 4, kWidth)
                        .insert(0, "  ")
                 << '\n';
@@ -124,6 +164,12 @@ int models_command(const ModelsOptions& opt, std::ostream& out, std::ostream& er
             rows.push_back({m.id, std::to_string(m.compartments.size()), join(route_names(m)), m.summary});
         out << format_table(rows, 0);
         if (models.empty()) out << "(no models found in " << join(dirs) << ")\n";
+        for (const auto& [id, path] : hidden)
+            for (const auto& m : models)
+                if (m.id == id)
+                    out << wrap_text("note: '" + id + "' is " + m.path + "; " + path + " has the same id and is not used",
+                                     0, 2, kWidth)
+                        << '\n';
         if (!problems.empty()) {
             err << "some model files could not be loaded:\n" << problems;
             return kExitBadInput;

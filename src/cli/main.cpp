@@ -1,11 +1,14 @@
 // Command-line parsing only: fills the option structs of cli/commands.hpp and calls the commands.
 #include <CLI/CLI.hpp>
 
+#include <algorithm>
 #include <exception>
 #include <iostream>
 #include <string>
+#include <vector>
 
 #include "cli/commands.hpp"
+#include "core/suggest.hpp"
 
 namespace {
 
@@ -56,6 +59,45 @@ void add_model_dirs(CLI::App* app, std::vector<std::string>& dirs) {
         ->multi_option_policy(CLI::MultiOptionPolicy::TakeAll);
 }
 
+// The parser library's wording for the mistakes people make, in plain words: an option given twice, an
+// argument that is not an option of this command (with the closest one).
+std::string plain_words(const CLI::ParseError& e, const CLI::App* sub) {
+    const std::string what = e.what();
+    const std::string at_most = ": At Most 1 required but received ";
+    if (const auto p = what.find(at_most); p != std::string::npos) {
+        const std::string name = what.substr(0, p);
+        const std::string n = what.substr(p + at_most.size());
+        return name + " given " + (n == "2" ? std::string("twice") : n + " times") + "; give it once";
+    }
+    const std::string extras = "not expected: ";
+    if (const auto p = what.find(extras); sub != nullptr && p != std::string::npos) {
+        std::vector<std::string> names;
+        for (const CLI::Option* o : sub->get_options())
+            for (const auto& l : o->get_lnames()) names.push_back("--" + l);
+        // The library lists them last first. Values after an unknown option are that option's: name the option.
+        std::vector<std::string> args;
+        for (std::size_t start = p + extras.size(); start < what.size();) {
+            const std::size_t space = std::min(what.find(' ', start), what.size());
+            args.insert(args.begin(), what.substr(start, space - start));
+            start = space + 1;
+        }
+        const bool any_option = std::any_of(args.begin(), args.end(), [](const std::string& a) { return !a.empty() && a[0] == '-'; });
+        std::string out;
+        for (const auto& arg : args) {
+            if (arg.empty() || (any_option && arg[0] != '-')) continue;
+            if (!out.empty()) out += "; ";
+            if (arg[0] == '-')
+                out += "unknown option '" + arg + "' for '" + sub->get_name() + "'" +
+                       plateau::did_you_mean(arg.substr(0, arg.find('=')), names);
+            else
+                out += "unexpected argument '" + arg + "' ('" + sub->get_name() + "' takes " +
+                       (sub->get_name() == "models" ? "one model id or model file" : "one regimen file") + ")";
+        }
+        return out;
+    }
+    return what;
+}
+
 }  // namespace
 
 int main(int argc, char** argv) {
@@ -89,6 +131,7 @@ int main(int argc, char** argv) {
             [](std::string& v) { return v == "all" || v == "some" ? std::string() : "expected 'all' or 'some', got '" + v + "'"; },
             "", "all"))
         ->type_name("all|some");
+    run->add_flag("--clock", run_opt.clock, "Also show times as day and clock time (the file's start_clock)");
     add_outputs(run, run_opt.json, run_opt.report, run_opt.plot, run_opt.auc);
     add_targets(run, run_opt.targets);
     add_model_dirs(run, run_opt.model_dirs);
@@ -115,6 +158,27 @@ int main(int argc, char** argv) {
                        "  plateau compare a.toml b.toml --above 2mg/L --above-for 50% --json -\n"
                        "Regimens may differ in anything but must share the output and its unit."));
 
+    cli::PopulationOptions pop_opt;
+    CLI::App* pop = app.add_subcommand("population", "Virtual patients through regimens: PTA, percentiles, bands");
+    pop->add_option("regimens", pop_opt.regimens, "Regimen files (.toml) of one model")->required()->type_name("REGIMEN...");
+    pop->add_option("--cohort", pop_opt.cohort, "Cohort file: the covariates of the virtual patients")->type_name("FILE");
+    pop->add_option("--size", pop_opt.size, "Number of virtual patients (default 1000)")->type_name("N");
+    pop->add_option("--seed", pop_opt.seed, "Seed: the same seed gives the same patients (default 1)")->type_name("S");
+    pop->add_option("--threads", pop_opt.threads, "Threads (the output does not depend on it; default 1)")->type_name("N");
+    pop->add_option("--tol", pop_opt.tol, "Integration tolerance, 1e-15 to 1e-3 (default 1e-10)")
+        ->check(tolerance_validator())
+        ->type_name("TOL");
+    pop->add_option("--csv", pop_opt.csv, "One row per patient and regimen ('-': standard output)")->type_name("FILE");
+    pop->add_option("--pta-curve", pop_opt.pta_curve, "PTA at doubling thresholds, e.g. 0.25mg/L..64mg/L")->type_name("LOW..HIGH");
+    pop->add_option("--thresholds", pop_opt.thresholds, "Threshold distribution file: the expected attainment")->type_name("FILE");
+    std::vector<std::string> pop_auc;
+    add_outputs(pop, pop_opt.json, pop_opt.report, pop_opt.plot, pop_auc);
+    pop->remove_option(pop->get_option("--auc"));
+    add_targets(pop, pop_opt.targets);
+    add_model_dirs(pop, pop_opt.model_dirs);
+    pop->footer(footer("  plateau population a.toml b.toml --cohort cohorts/adults.toml --size 2000 --above 4mg/L\n"
+                       "  plateau population a.toml --above 2mg/L --pta-curve 0.25mg/L..64mg/L --json - --threads 2"));
+
     cli::CheckOptions check_opt;
     CLI::App* check = app.add_subcommand("check", "Validate model and regimen files without simulating");
     check->add_option("files", check_opt.files, "Model or regimen files")->required()->type_name("FILE");
@@ -123,9 +187,10 @@ int main(int argc, char** argv) {
 
     cli::ModelsOptions models_opt;
     CLI::App* models = app.add_subcommand("models", "List the available models, or describe one");
-    models->add_option("id", models_opt.id, "Model id to describe")->type_name("ID");
+    models->add_option("id", models_opt.id, "Model id, or path of a model file, to describe")->type_name("ID|FILE");
     add_model_dirs(models, models_opt.model_dirs);
-    models->footer(footer("  plateau models\n  plateau models two-compartment-iv --models ./my-models"));
+    models->footer(footer("  plateau models\n  plateau models two-compartment-iv --models ./my-models\n"
+                          "  plateau models ./my-models/my-model.toml"));
 
     cli::DoseOptions dose_opt;
     CLI::App* dose = app.add_subcommand("dose", "Find the dose per interval and infusion length that meets the targets");
@@ -156,11 +221,19 @@ int main(int argc, char** argv) {
         if (e.get_exit_code() == 0) return app.exit(e);  // --help, --version
         std::string where = "plateau";
         for (const CLI::App* sub : app.get_subcommands()) where += " " + sub->get_name();
-        std::string what = e.what();
-        if (app.get_subcommands().empty()) {
+        const CLI::App* sub = app.get_subcommands().empty() ? nullptr : app.get_subcommands().front();
+        std::string what = plain_words(e, sub);
+        if (sub == nullptr) {
             // No command was recognised: say which ones there are, in our words.
+            std::vector<std::string> commands;  // from the table of subcommands, in its order
+            std::string list;
+            for (const CLI::App* c : app.get_subcommands([](CLI::App*) { return true; })) {
+                commands.push_back(c->get_name());
+                list += (list.empty() ? "" : ", ") + c->get_name();
+            }
             what = argc > 1 && argv[1][0] != '-' ? "unknown command '" + std::string(argv[1]) + "'" : "no command given";
-            what += "; expected one of: run, compare, check, models, dose";
+            what += "; expected one of: " + list;
+            if (argc > 1 && argv[1][0] != '-') what += plateau::did_you_mean(argv[1], commands);
         }
         std::cerr << "error: " << what << "\n(run '" << where << " --help' for usage)\n";
         return cli::kExitBadInput;
@@ -178,6 +251,7 @@ int main(int argc, char** argv) {
         run_opt.all_intervals = intervals == "all";
         if (*run) return cli::run_command(run_opt, std::cout, std::cerr);
         if (*cmp) return cli::compare_command(cmp_opt, std::cout, std::cerr);
+        if (*pop) return cli::population_command(pop_opt, std::cout, std::cerr);
         if (*check) return cli::check_command(check_opt, std::cout, std::cerr);
         if (*models) return cli::models_command(models_opt, std::cout, std::cerr);
         if (*dose) return cli::dose_command(dose_opt, std::cout, std::cerr);

@@ -8,6 +8,7 @@
 #include "cli/evaluate.hpp"
 #include "cli/outputs.hpp"
 #include "cli/support.hpp"
+#include "regimen/time.hpp"
 #include "report/exposure_text.hpp"
 #include "core/diagnostic.hpp"
 #include "input/load.hpp"
@@ -24,7 +25,7 @@ void print_run_summary(std::ostream& out, const regimen::Regimen& r, const sim::
     const model::Model& m = r.model;
     labelled(out, "Regimen", r.id + " (" + r.path + ")");
     if (!r.about.empty()) labelled(out, "", r.about);
-    labelled(out, "Model", m.id + ": " + m.summary);
+    labelled(out, "Model", m.id + " (" + m.path + "): " + m.summary);
     if (!r.overrides.empty()) {
         std::vector<std::string> parts;
         for (const auto& o : r.overrides) {
@@ -89,11 +90,15 @@ int run_command(const RunOptions& opt, std::ostream& out, std::ostream& err) {
         check_outputs(opt.json, opt.report, opt.plot, {opt.regimen}, opt.csv);
         regimen::Regimen r = load(opt.regimen, opt.model_dirs, opt.targets);
         check_outputs(opt.json, opt.report, opt.plot, {opt.regimen, r.model.path}, opt.csv);  // the model too
+        print_warnings(r, err);
+        if (opt.clock && !r.start_clock)
+            throw UsageError("--clock needs the clock time at t = 0: add start_clock = \"08:00\" at the top of " +
+                             quoted(opt.regimen));
         const double horizon = r.horizon.until;
         if (!opt.csv.empty()) {
             if (has_times) {
                 for (double& t : times) {
-                    if (t > horizon && t <= horizon + 1e-9 * std::max(1.0, horizon)) t = horizon;
+                    if (t > horizon && regimen::same_instant(t, horizon)) t = horizon;
                     if (t > horizon)
                         throw UsageError("--times: " + num(t) +
                                          " h is after the end of the horizon; expected times from 0 to " +
@@ -136,6 +141,7 @@ int run_command(const RunOptions& opt, std::ostream& out, std::ostream& err) {
         summary << '\n';
         report::TextOptions to;
         to.all_intervals = opt.all_intervals;
+        if (opt.clock) to.clock = c.regimen.start_clock;
         report::write_exposure_text(summary, c.regimen, c.sim, c.exposure, to);
         if (!written.str().empty()) summary << '\n' << written.str();
         summary << '\n' << wrap_text(report::kCaution, 0, 0, kWidth) << '\n';

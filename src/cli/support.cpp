@@ -64,8 +64,10 @@ std::string hours(double h) {
 }
 
 std::vector<std::string> model_dirs(const std::vector<std::string>& extra) {
-    std::vector<std::string> dirs = input::default_model_dirs();
-    dirs.insert(dirs.end(), extra.begin(), extra.end());
+    // Folders named on the command line first: their models win over the built-in ones of the same id.
+    std::vector<std::string> dirs = extra;
+    const std::vector<std::string> defaults = input::default_model_dirs();
+    dirs.insert(dirs.end(), defaults.begin(), defaults.end());
     return dirs;
 }
 

@@ -25,7 +25,7 @@ std::string quoted(std::string_view s);
 std::string join(const std::vector<std::string>& v, std::string_view sep = ", ");
 std::string with_unit(double value, const std::string& unit_text, int digits = kSummaryDigits);
 std::string hours(double h);                          // "36 h", "72 h (3 d)"
-// The built-in model directories, then the --models ones.
+// The --models directories, then the built-in ones and PLATEAU_MODELS.
 std::vector<std::string> model_dirs(const std::vector<std::string>& extra);
 // Aligned columns; the last column is wrapped to the terminal width.
 std::string format_table(const std::vector<std::vector<std::string>>& rows, std::size_t indent);

@@ -40,64 +40,88 @@ InputError::InputError(std::vector<Diagnostic> diagnostics)
     : std::runtime_error(summarize(diagnostics)), diagnostics_(std::move(diagnostics)) {}
 
 void DiagnosticSink::error(SourcePos pos, std::string message, std::string expected, int length) {
-    items_.push_back(Diagnostic{std::move(pos), std::move(message), std::move(expected), length});
+    items_.emplace_back(std::move(pos), std::move(message), std::move(expected), length);
+}
+
+void DiagnosticSink::add_notes(std::size_t index, std::vector<Note> notes) {
+    if (index >= items_.size()) return;
+    for (auto& n : notes) items_[index].notes.push_back(std::move(n));
 }
 
 void DiagnosticSink::throw_if_any() const {
     if (!items_.empty()) throw InputError(items_);
 }
 
-std::string format_diagnostic(const Diagnostic& d, std::string_view source_line) {
-    std::ostringstream out;
-    if (!d.pos.file.empty()) {
-        out << d.pos.file;
-        if (d.pos.line > 0) {
-            out << ':' << d.pos.line;
-            if (d.pos.col > 0) out << ':' << d.pos.col;
+namespace {
+
+// "path:line:col: <kind>: message", the source line and a caret line under the columns it is about.
+void located(std::ostringstream& out, const SourcePos& pos, std::string_view kind, const std::string& message,
+             std::string_view source_line, int length) {
+    if (!pos.file.empty()) {
+        out << pos.file;
+        if (pos.line > 0) {
+            out << ':' << pos.line;
+            if (pos.col > 0) out << ':' << pos.col;
         }
         out << ": ";
+    } else if (kind != "error") {
+        out << "  ";
     }
-    out << "error: " << d.message << '\n';
-    if (!source_line.empty() && d.pos.col > 0) {
+    out << kind << ": " << message << '\n';
+    if (!source_line.empty() && pos.col > 0) {
         const std::string shown = printable(source_line);
         out << "  " << shown << '\n' << "  ";
         // One column per character (UTF-8 continuation bytes take none); tabs kept so the caret lines up.
-        for (std::size_t i = 0; i + 1 < static_cast<std::size_t>(d.pos.col) && i < shown.size(); ++i) {
+        for (std::size_t i = 0; i + 1 < static_cast<std::size_t>(pos.col) && i < shown.size(); ++i) {
             const auto ch = static_cast<unsigned char>(shown[i]);
             if ((ch & 0xC0) == 0x80) continue;
             out << (ch == '\t' ? '\t' : ' ');
         }
         out << '^';
-        for (int i = 1; i < d.length; ++i) out << '~';
+        for (int i = 1; i < length; ++i) out << '~';
         out << '\n';
     }
+}
+
+}  // namespace
+
+std::string format_diagnostic(const Diagnostic& d, std::string_view source_line,
+                              const std::vector<std::string_view>& note_lines) {
+    std::ostringstream out;
+    located(out, d.pos, "error", d.message, source_line, d.length);
     if (!d.expected.empty()) out << "  expected: " << d.expected << '\n';
+    for (std::size_t i = 0; i < d.notes.size(); ++i)
+        located(out, d.notes[i].pos, "note", d.notes[i].message, i < note_lines.size() ? note_lines[i] : "",
+                d.notes[i].length);
     return out.str();
 }
 
 std::string format_diagnostics(const std::vector<Diagnostic>& ds) {
     std::map<std::string, std::vector<std::string>> cache;
+    auto line_of = [&](const SourcePos& pos) -> std::string_view {
+        if (pos.file.empty() || pos.line <= 0) return {};
+        auto it = cache.find(pos.file);
+        if (it == cache.end()) {
+            std::vector<std::string> lines;
+            std::ifstream in(pos.file, std::ios::binary);
+            std::string l;
+            // Source lines are for display only; stop early on huge files.
+            while (in && lines.size() < 1000000 && std::getline(in, l)) {
+                if (!l.empty() && l.back() == '\r') l.pop_back();
+                if (l.size() > 200) l.resize(200);
+                lines.push_back(l);
+            }
+            it = cache.emplace(pos.file, std::move(lines)).first;
+        }
+        if (static_cast<std::size_t>(pos.line) > it->second.size()) return {};
+        return it->second[static_cast<std::size_t>(pos.line - 1)];
+    };
     std::string out;
     for (const auto& d : ds) {
-        std::string_view line;
-        if (!d.pos.file.empty() && d.pos.line > 0) {
-            auto it = cache.find(d.pos.file);
-            if (it == cache.end()) {
-                std::vector<std::string> lines;
-                std::ifstream in(d.pos.file, std::ios::binary);
-                std::string l;
-                // Source lines are for display only; stop early on huge files.
-                while (in && lines.size() < 1000000 && std::getline(in, l)) {
-                    if (!l.empty() && l.back() == '\r') l.pop_back();
-                    if (l.size() > 200) l.resize(200);
-                    lines.push_back(l);
-                }
-                it = cache.emplace(d.pos.file, std::move(lines)).first;
-            }
-            if (static_cast<std::size_t>(d.pos.line) <= it->second.size())
-                line = it->second[static_cast<std::size_t>(d.pos.line - 1)];
-        }
-        out += format_diagnostic(d, line);
+        // Views into the cache stay valid: std::map never moves its elements.
+        std::vector<std::string_view> note_lines;
+        for (const auto& n : d.notes) note_lines.push_back(line_of(n.pos));
+        out += format_diagnostic(d, line_of(d.pos), note_lines);
     }
     return out;
 }

@@ -16,12 +16,24 @@ struct SourcePos {
     int col = 0;
 };
 
+// A remark attached to a diagnostic at another place, e.g. the parameter whose unit makes a rate wrong.
+struct Note {
+    SourcePos pos;         // may be unknown (line 0): the note is then shown without a location
+    std::string message;
+    int length = 1;        // columns to underline
+};
+
 // One problem found in the input, with what was expected instead.
 struct Diagnostic {
+    Diagnostic() = default;
+    Diagnostic(SourcePos p, std::string m, std::string e = {}, int len = 1)
+        : pos(std::move(p)), message(std::move(m)), expected(std::move(e)), length(len) {}
+
     SourcePos pos;
     std::string message;   // what is wrong, e.g. "unknown identifier 'kel'"
     std::string expected;  // what would be right, e.g. "one of: ka, cl, v" (may be empty)
     int length = 1;        // columns to underline
+    std::vector<Note> notes;  // shown after it, each with its own location and source line
 };
 
 // An error located inside a piece of text (a quantity string, an expression). Offsets are 0-based byte offsets
@@ -61,6 +73,8 @@ class DiagnosticSink {
 public:
     void add(Diagnostic d) { items_.push_back(std::move(d)); }
     void error(SourcePos pos, std::string message, std::string expected = {}, int length = 1);
+    // Attaches notes to the diagnostic number `index` (in the order added; nothing happens past the end).
+    void add_notes(std::size_t index, std::vector<Note> notes);
     bool empty() const { return items_.empty(); }
     std::size_t size() const { return items_.size(); }
     const std::vector<Diagnostic>& items() const { return items_; }
@@ -71,9 +85,11 @@ private:
     std::vector<Diagnostic> items_;
 };
 
-// "path:line:col: error: message", then the source line, a caret line, and "  expected: ..." if known.
+// "path:line:col: error: message", then the source line, a caret line, and "  expected: ..." if known; then each
+// note as "path:line:col: note: message" (with its source line when `note_lines` has it).
 // `source_line` is the text of line pos.line (without newline); empty means "do not show it".
-std::string format_diagnostic(const Diagnostic& d, std::string_view source_line = {});
+std::string format_diagnostic(const Diagnostic& d, std::string_view source_line = {},
+                              const std::vector<std::string_view>& note_lines = {});
 
 // Formats every diagnostic, reading source lines from the files they name (files that cannot be read are
 // shown without their source line).

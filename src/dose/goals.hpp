@@ -16,18 +16,18 @@ namespace plateau::dose {
 enum class Side { Lower, Upper, Exact };
 
 enum class Figure {
-    Lowest,       // steady-state lowest value
-    Peak,         // steady-state peak
-    AboveShare,   // share of each steady-state interval above the threshold
-    Auc24,        // steady-state AUC24
+    Lowest,      // steady-state lowest value
+    Peak,        // steady-state peak
+    AboveShare,  // share of each steady-state interval above the threshold
+    Auc24,       // steady-state AUC24
 };
 
 struct Goal {
     Side side = Side::Lower;
     Figure figure = Figure::Lowest;
-    double value = 0.0;      // canonical units (a share for AboveShare)
-    std::string name;        // "threshold", "window low", "window high", "AUC24 low", "AUC24 high", "AUC24 ="
-    std::string label;       // "threshold 4 mg/L", "window high 40 mg/L", "AUC24 = 400 mg·h/L"
+    double value = 0.0;  // canonical units (a share for AboveShare)
+    std::string name;    // "threshold", "window low", "window high", "AUC24 low", "AUC24 high", "AUC24 ="
+    std::string label;   // "threshold 4 mg/L", "window high 40 mg/L", "AUC24 = 400 mg·h/L"
 };
 
 // The threshold counts as met only when the output is above it by more than round-off (metrics/level.cpp:

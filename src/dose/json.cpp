@@ -36,9 +36,12 @@ std::string n(double v) {
 
 const char* side_name(Side s) {
     switch (s) {
-        case Side::Lower: return "at least";
-        case Side::Upper: return "at most";
-        case Side::Exact: return "exactly";
+        case Side::Lower:
+            return "at least";
+        case Side::Upper:
+            return "at most";
+        case Side::Exact:
+            return "exactly";
     }
     return "";
 }
@@ -50,8 +53,8 @@ void write_json(std::ostream& out, const Report& r, const std::vector<Found>& fs
     const int oi = t.targets.output.empty() ? 0 : std::max(0, t.model.output_index(t.targets.output));
     const model::Output& o = t.model.outputs[static_cast<std::size_t>(oi)];
     auto conc = [&](double v) { return n(report::in_output_unit(o, v)); };
-    out << "{\n  \"template\": " << q(t.path) << ",\n  \"model\": " << q(t.model.id) << ",\n  \"output\": "
-        << q(o.name) << ",\n  \"unit\": " << q(o.unit_text) << ",\n  \"auc_unit\": " << q(report::auc_unit(o.unit_text))
+    out << "{\n  \"template\": " << q(t.path) << ",\n  \"model\": " << q(t.model.id) << ",\n  \"output\": " << q(o.name)
+        << ",\n  \"unit\": " << q(o.unit_text) << ",\n  \"auc_unit\": " << q(report::auc_unit(o.unit_text))
         << ",\n  \"tolerance\": " << n(r.tolerance) << ",\n  \"goals\": [";
     for (std::size_t i = 0; i < r.goals.size(); ++i) {
         const Goal& g = r.goals[i];
@@ -59,14 +62,16 @@ void write_json(std::ostream& out, const Report& r, const std::vector<Found>& fs
             << ", \"figure\": " << q(figure_name(g.figure)) << ", \"side\": " << q(side_name(g.side)) << "}";
     }
     out << "\n  ],\n  \"round_mg\": " << (r.request.round_step > 0 ? n(r.request.round_step) : "null")
-        << ",\n  \"rule\": " << q(kRule) << ",\n  \"recommended\": " << (r.recommended >= 0 ? std::to_string(r.recommended) : "null")
+        << ",\n  \"rule\": " << q(rule(r.goals))
+        << ",\n  \"recommended\": " << (r.recommended >= 0 ? std::to_string(r.recommended) : "null")
         << ",\n  \"candidates\": [";
     for (std::size_t i = 0; i < fs.size(); ++i) {
         const Found& f = fs[i];
-        out << (i ? ",\n" : "\n") << "    {\n      \"interval\": " << n(f.shape.tau) << ",\n      \"over\": "
-            << n(f.shape.over) << ",\n      \"dose_mg\": " << n(f.dose) << ",\n      \"solved_mg\": " << n(f.exact)
-            << ",\n      \"daily_mg\": " << n(f.daily()) << ",\n      \"outcome\": " << q(outcome_name(f.outcome))
-            << ",\n      \"set_by\": " << q(f.deciding) << ",\n      \"message\": " << q(f.message)
+        out << (i ? ",\n" : "\n") << "    {\n      \"interval\": " << n(f.shape.tau)
+            << ",\n      \"over\": " << n(f.shape.over) << ",\n      \"dose_mg\": " << n(f.dose)
+            << ",\n      \"solved_mg\": " << n(f.exact) << ",\n      \"daily_mg\": " << n(f.daily())
+            << ",\n      \"outcome\": " << q(outcome_name(f.outcome)) << ",\n      \"set_by\": " << q(f.deciding)
+            << ",\n      \"message\": " << q(f.message)
             << ",\n      \"recommended\": " << (static_cast<int>(i) == r.recommended ? "true" : "false");
         const metrics::Steady* s =
             f.at && f.at->exposure.steady && f.at->exposure.steady->found ? &*f.at->exposure.steady : nullptr;
@@ -89,9 +94,10 @@ void write_json(std::ostream& out, const Report& r, const std::vector<Found>& fs
         if (f.loading && f.loading->problem.empty()) {
             const bool trough = f.loading->figure == "trough";
             out << "{\"dose_mg\": " << n(f.loading->dose) << ", \"solved_mg\": " << n(f.loading->exact)
-                << ", \"figure\": " << q(trough ? "trough" : "above_hours") << ", \"first_interval\": "
-                << (trough ? conc(f.loading->first_value) : n(f.loading->first_value)) << ", \"steady_state\": "
-                << (trough ? conc(f.loading->steady_value) : n(f.loading->steady_value)) << "}";
+                << ", \"figure\": " << q(trough ? "trough" : "above_hours")
+                << ", \"first_interval\": " << (trough ? conc(f.loading->first_value) : n(f.loading->first_value))
+                << ", \"steady_state\": " << (trough ? conc(f.loading->steady_value) : n(f.loading->steady_value))
+                << "}";
         } else if (f.loading) {
             out << "{\"problem\": " << q(f.loading->problem) << "}";
         } else {

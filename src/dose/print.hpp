@@ -15,9 +15,9 @@ struct Report {
     std::vector<Goal> goals;
     Request request;
     double tolerance = 1e-10;
-    int recommended = -1;           // index into the ranked candidates, −1 for none
-    std::vector<std::string> notes; // printed before the closing caution
-    std::string trailer;            // files written
+    int recommended = -1;            // index into the ranked candidates, −1 for none
+    std::vector<std::string> notes;  // printed before the closing caution
+    std::string trailer;             // files written
 };
 
 void write_text(std::ostream& out, const Report& r, const std::vector<Found>& fs);

@@ -11,7 +11,9 @@ namespace plateau::dose {
 
 namespace {
 
-std::string mg(double d) { return report::num(d, 6) + " mg"; }
+std::string mg(double d) {
+    return report::num(d, 6) + " mg";
+}
 
 const model::Output& output_of(const regimen::Regimen& r) {
     const int i = r.targets.output.empty() ? 0 : std::max(0, r.model.output_index(r.targets.output));
@@ -38,6 +40,7 @@ public:
         double need = 0.0, cap = std::numeric_limits<double>::infinity();
         std::string need_label, cap_label, need_name, cap_name;
         std::optional<double> exact;
+        std::string exact_label;
         for (std::size_t gi = 0; gi < goals_.size(); ++gi) {
             const Goal& g = goals_[gi];
             Root r = solve_rising([&](double d) { return figures(d)[gi]; }, g.value, start);
@@ -54,9 +57,10 @@ public:
                 return measured(f, start, start);
             }
             if (g.side == Side::Lower && r.high > need) need = r.high, need_label = g.label, need_name = g.name;
-            if (g.side == Side::Exact) exact = r.high, f.deciding = g.name;
+            if (g.side == Side::Exact) exact = r.high, exact_label = g.label, f.deciding = g.name;
             // An upper goal never reached (even at the largest dose searched) sets no limit.
-            if (g.side == Side::Upper && std::isfinite(r.high) && r.low < cap) cap = r.low, cap_label = g.label, cap_name = g.name;
+            if (g.side == Side::Upper && std::isfinite(r.high) && r.low < cap)
+                cap = r.low, cap_label = g.label, cap_name = g.name;
         }
         double dose = 0.0;
         bool nearest = false;
@@ -77,16 +81,32 @@ public:
                 f.message += " (the peak leaves the window before the threshold is met)";
             else if (cap_label.rfind("window", 0) == 0)
                 f.message += " (the peak leaves the window before the lowest value enters it)";
-            f.message += "; figures at the best compromise, " + mg(dose) +
-                         ", halfway between the two on a log scale";
+            f.message += "; figures at the best compromise, " + mg(dose) + ", halfway between the two on a log scale";
         }
         measured(f, dose, round(dose, nearest));
+        if (exact && q_.round_step > 0.0)
+            // A value asked exactly is hit at the solved dose; the preparable dose is the nearest step to it.
+            for (auto& v : f.verdicts)
+                if (v.kind == "auc24") {
+                    v.met = true;
+                    v.what += " (hit at " + mg(f.exact) + "; " + mg(f.dose) + " is the nearest " + mg(q_.round_step) +
+                              " step)";
+                }
+        if (exact) {
+            const Goal& g =
+                *std::find_if(goals_.begin(), goals_.end(), [](const Goal& x) { return x.side == Side::Exact; });
+            f.miss = std::abs(figure_of(g, f.at->exposure) - g.value) / g.value;
+        }
         if (f.outcome != Outcome::Infeasible) {
             f.outcome = all_met(f.verdicts) ? Outcome::Meets : Outcome::FallsShort;
+            std::vector<std::string> missed;
+            for (const auto& v : f.verdicts)
+                if (v.met != true) missed.push_back(v.what);
+            std::string list;
+            for (std::size_t i = 0; i < missed.size(); ++i) list += (i ? "; " : "") + missed[i];
             if (f.outcome == Outcome::FallsShort)
-                f.message = q_.round_step > 0.0 && f.dose != f.exact
-                                ? "at the rounded dose some targets are not met (see the verdicts)"
-                                : "at this dose some targets are not met (see the verdicts)";
+                f.message = exact ? "the dose for " + exact_label + " misses: " + list
+                                  : "rounding up to " + mg(f.dose) + " misses: " + list;
         }
         if (q_.loading && f.outcome != Outcome::Infeasible) f.loading = loading(f);
         return f;
@@ -103,7 +123,7 @@ private:
     const std::vector<double>& figures(double d) {
         auto it = cache_.find(d);
         if (it != cache_.end()) return it->second;
-        const report::Candidate c = m_(variant(t_, s_, d));
+        const report::Candidate c = m_(variant(t_, s_, d, {}, true));
         std::vector<double> v;
         for (const Goal& g : goals_) v.push_back(figure_of(g, c.exposure));
         return cache_.emplace(d, std::move(v)).first->second;
@@ -119,12 +139,16 @@ private:
     // only at large doses); otherwise the candidate says why there is none.
     bool has_steady_state(double start, Found& f) {
         for (double d : {start, start * 1e-3}) {
-            const report::Candidate c = m_(variant(t_, s_, d));
-            if (c.exposure.steady && c.exposure.steady->found) return true;
+            const report::Candidate c = m_(variant(t_, s_, d, {}, true));
+            if (c.exposure.steady && c.exposure.steady->found) {
+                f = Found{};
+                f.shape = s_;
+                return true;
+            }
             if (d == start) {
                 f.outcome = Outcome::Unreachable;
-                f.message = "no steady state: " +
-                            (c.exposure.steady ? c.exposure.steady->why_not : std::string("the regimen does not repeat"));
+                f.message = "no steady state: " + (c.exposure.steady ? c.exposure.steady->why_not
+                                                                     : std::string("the regimen does not repeat"));
                 f.exact = f.dose = start;
                 f.at = c;
                 f.verdicts = report::verdicts(c.regimen.targets, output_of(c.regimen), c.exposure);
@@ -145,13 +169,13 @@ private:
     // threshold) to the steady-state value at the maintenance dose.
     Loading loading(const Found& f) {
         Loading l;
-        const bool share = std::any_of(goals_.begin(), goals_.end(),
-                                       [](const Goal& g) { return g.figure == Figure::AboveShare; });
+        const bool share =
+            std::any_of(goals_.begin(), goals_.end(), [](const Goal& g) { return g.figure == Figure::AboveShare; });
         const metrics::Steady& st = *f.at->exposure.steady;
         l.figure = share ? "time above (h)" : "trough";
         l.steady_value = share ? st.above_hours : st.trough;
         auto first = [&](double load) {
-            const report::Candidate c = m_(variant(t_, s_, f.dose, load));
+            const report::Candidate c = m_(variant(t_, s_, f.dose, load, true));
             if (c.exposure.intervals.empty()) return std::numeric_limits<double>::quiet_NaN();
             const metrics::Interval& iv = c.exposure.intervals.front();
             return share ? iv.above_hours : iv.trough;
@@ -180,18 +204,31 @@ int rank(std::vector<Found>& fs) {
     std::stable_sort(fs.begin(), fs.end(), [](const Found& a, const Found& b) {
         const bool ma = a.outcome == Outcome::Meets, mb = b.outcome == Outcome::Meets;
         if (ma != mb) return ma;
+        // Closest to an exact goal first; differences below the figures' round-off do not count.
+        if (std::abs(a.miss - b.miss) > 1e-9) return a.miss < b.miss;
         return a.daily() < b.daily();
     });
     return !fs.empty() && fs.front().outcome == Outcome::Meets ? 0 : -1;
 }
 
+std::string rule(const std::vector<Goal>& goals) {
+    const bool exact = std::any_of(goals.begin(), goals.end(), [](const Goal& g) { return g.side == Side::Exact; });
+    return exact ? "closest to the exact target, then smallest daily dose, meeting every target"
+                 : "smallest daily dose meeting every target";
+}
+
 std::string outcome_name(Outcome o) {
     switch (o) {
-        case Outcome::Meets: return "meets every target";
-        case Outcome::FallsShort: return "falls short";
-        case Outcome::Infeasible: return "no dose fits";
-        case Outcome::NonMonotone: return "not monotone";
-        case Outcome::Unreachable: return "unreachable";
+        case Outcome::Meets:
+            return "meets every target";
+        case Outcome::FallsShort:
+            return "falls short";
+        case Outcome::Infeasible:
+            return "no dose fits";
+        case Outcome::NonMonotone:
+            return "not monotone";
+        case Outcome::Unreachable:
+            return "unreachable";
     }
     return "";
 }

@@ -21,7 +21,7 @@ using Measure = std::function<report::Candidate(regimen::Regimen)>;
 
 struct Request {
     std::vector<Shape> shapes;
-    double round_step = 0.0;    // mg; 0 = no rounding
+    double round_step = 0.0;  // mg; 0 = no rounding
     bool loading = false;
 };
 
@@ -45,24 +45,27 @@ struct Loading {
 struct Found {
     Shape shape;
     Outcome outcome = Outcome::Unreachable;
-    double exact = 0.0;          // mg, the solved dose (or the compromise)
-    double dose = 0.0;           // mg, after rounding (= exact without rounding)
-    std::string deciding;        // label of the goal that set the dose
-    std::string message;         // plain words for anything but Meets
-    std::optional<report::Candidate> at;   // measured at `dose` (absent when nothing could be measured)
+    double exact = 0.0;                   // mg, the solved dose (or the compromise)
+    double dose = 0.0;                    // mg, after rounding (= exact without rounding)
+    std::string deciding;                 // label of the goal that set the dose
+    std::string message;                  // plain words for anything but Meets
+    std::optional<report::Candidate> at;  // measured at `dose` (absent when nothing could be measured)
     std::vector<report::Verdict> verdicts;
     std::optional<Loading> loading;
+    double miss = 0.0;  // with an exact goal: |figure at `dose` − value| / value (rounding moves it)
     double daily() const { return dose * 24.0 / shape.tau; }
 };
 
 // Searches every shape. `goals` must hold at least one lower or exact goal.
 std::vector<Found> search(const Template& t, const std::vector<Goal>& goals, const Request& q, const Measure& m);
 
-// Orders the candidates: those meeting every target first, then by daily dose. Returns the index of the
-// recommended one (the first, when it meets every target), or −1.
+// Orders the candidates: those meeting every target first, then (with an exact goal) the closest to it at the
+// dose given, then by daily dose. Returns the index of the recommended one (the first, when it meets every
+// target), or −1.
 int rank(std::vector<Found>& fs);
 
-inline constexpr const char* kRule = "smallest daily dose meeting every target";
+// The rule `rank` recommends by, in words.
+std::string rule(const std::vector<Goal>& goals);
 
 std::string outcome_name(Outcome o);
 

@@ -29,7 +29,7 @@ std::string falling_pair(std::vector<Sample> s) {
     std::sort(s.begin(), s.end(), [](const Sample& a, const Sample& b) { return a.dose < b.dose; });
     for (std::size_t i = 0; i + 1 < s.size(); ++i) {
         const double a = s[i].value, b = s[i + 1].value;
-        if (std::isnan(a) || std::isnan(b)) continue;
+        if (std::isnan(a) || std::isnan(b) || std::isnan(s[i].dose) || std::isnan(s[i + 1].dose)) continue;
         if (b < a - 1e-9 * std::abs(a))
             return "the figure falls from " + val(a) + " at " + mg(s[i].dose) + " to " + val(b) + " at " +
                    mg(s[i + 1].dose);
@@ -114,8 +114,9 @@ Root solve_rising(const std::function<double(double)>& figure, double value, dou
         auto f = [&](double d) {
             const double v = eval(d);
             update(d, v);
-            // A non-finite value inside the bracket means a non-monotone figure; keep the solver finite.
-            return std::isfinite(v) ? v - value : std::numeric_limits<double>::max() / 4;
+            // A non-finite value inside the bracket means a non-monotone figure (reported after the solve); a
+            // moderate stand-in keeps the solver's interpolation finite.
+            return std::isfinite(v) ? v - value : std::abs(value) + 1.0;
         };
         auto tol = [](double a, double b) { return std::abs(b - a) <= kDoseRelTol * std::min(a, b); };
         std::uintmax_t iterations = 100;

@@ -24,10 +24,10 @@ enum class RootStatus {
 
 struct Root {
     RootStatus status = RootStatus::Found;
-    double low = 0.0;    // largest dose found with figure < value (= high when a dose hits the value exactly)
-    double high = 0.0;   // smallest dose found with figure >= value
+    double low = 0.0;             // largest dose found with figure < value (= high when a dose hits the value exactly)
+    double high = 0.0;            // smallest dose found with figure >= value
     std::vector<Sample> samples;  // every evaluation, in dose order
-    std::string why;     // plain words when not Found
+    std::string why;              // plain words when not Found
 };
 
 // Relative tolerance of the solve on the dose: far below any rounding step a pharmacy uses, above the

@@ -31,7 +31,9 @@ void wrap(std::ostream& out, const std::string& text, const std::string& first, 
     out << line << '\n';
 }
 
-void caution(std::ostream& out) { wrap(out, std::string("CAUTION: ") + report::kCaution, "", "         "); }
+void caution(std::ostream& out) {
+    wrap(out, std::string("CAUTION: ") + report::kCaution, "", "         ");
+}
 
 const model::Output& output_of(const regimen::Regimen& r) {
     const int i = r.targets.output.empty() ? 0 : std::max(0, r.model.output_index(r.targets.output));
@@ -58,10 +60,14 @@ std::string figure_cell(Figure k, const Found& f, const model::Output& o) {
     if (!f.at || !f.at->exposure.steady || !f.at->exposure.steady->found) return "—";
     const metrics::Steady& s = *f.at->exposure.steady;
     switch (k) {
-        case Figure::Lowest: return report::num(report::in_output_unit(o, s.minimum.value));
-        case Figure::Peak: return report::num(report::in_output_unit(o, s.peak.value));
-        case Figure::AboveShare: return report::percent(s.above_hours / s.interval);
-        case Figure::Auc24: return report::num(report::in_output_unit(o, s.auc24));
+        case Figure::Lowest:
+            return report::num(report::in_output_unit(o, s.minimum.value));
+        case Figure::Peak:
+            return report::num(report::in_output_unit(o, s.peak.value));
+        case Figure::AboveShare:
+            return report::percent(s.above_hours / s.interval);
+        case Figure::Auc24:
+            return report::num(report::in_output_unit(o, s.auc24));
     }
     return "";
 }
@@ -75,8 +81,7 @@ void table(std::ostream& out, const std::vector<std::vector<std::string>>& rows)
         }
     for (const auto& r : rows) {
         std::string line = "  ";
-        for (std::size_t i = 0; i < r.size(); ++i)
-            line += i + 1 < r.size() ? report::pad_right(r[i], w[i] + 2) : r[i];
+        for (std::size_t i = 0; i < r.size(); ++i) line += i + 1 < r.size() ? report::pad_right(r[i], w[i] + 2) : r[i];
         while (!line.empty() && line.back() == ' ') line.pop_back();
         out << line << '\n';
     }
@@ -84,7 +89,9 @@ void table(std::ostream& out, const std::vector<std::vector<std::string>>& rows)
 
 }  // namespace
 
-std::string duration_text(double h) { return h > 0.0 ? report::num(h) + " h" : "bolus"; }
+std::string duration_text(double h) {
+    return h > 0.0 ? report::num(h) + " h" : "bolus";
+}
 
 void write_text(std::ostream& out, const Report& r, const std::vector<Found>& fs) {
     caution(out);
@@ -92,8 +99,10 @@ void write_text(std::ostream& out, const Report& r, const std::vector<Found>& fs
     const regimen::Regimen& t = r.tmpl->regimen;
     const model::Output& o = output_of(t);
     const regimen::DoseSpec& spec = t.doses[r.tmpl->series];
-    out << "Dose search — template " << t.id << " (" << t.path << "), model '" << t.model.id << "', output '"
-        << o.name << "' (" << o.unit_text << ")\n";
+    wrap(out,
+         "Dose search — template " + t.id + " (" + t.path + "), model '" + t.model.id + "', output '" + o.name + "' (" +
+             o.unit_text + ")",
+         "", "  ");
     std::vector<std::string> labels;
     for (const auto& g : r.goals) labels.push_back(g.label);
     std::string goals;
@@ -101,8 +110,8 @@ void write_text(std::ostream& out, const Report& r, const std::vector<Found>& fs
     wrap(out, goals + " (at steady state)", "Targets   ", "          ");
     wrap(out,
          "the maintenance series (" + report::num(spec.amount) + " mg every " + duration_text(spec.every) +
-             (spec.over > 0 ? " over " + duration_text(spec.over) : " as a bolus") + " in the template): " +
-             std::to_string(fs.size()) + " candidate" + (fs.size() == 1 ? "" : "s") +
+             (spec.over > 0 ? " over " + duration_text(spec.over) : " as a bolus") +
+             " in the template): " + std::to_string(fs.size()) + " candidate" + (fs.size() == 1 ? "" : "s") +
              "; the smallest dose meeting every target, to 1e-12 relative",
          "Varied    ", "          ");
     if (r.request.round_step > 0)
@@ -137,14 +146,15 @@ void write_text(std::ostream& out, const Report& r, const std::vector<Found>& fs
     }
     table(out, rows);
     out << '\n';
-    std::string units = "Figures at steady state, at the dose shown:";
+    std::vector<std::string> parts;
     for (Figure k : figs) {
-        if (k == Figure::Lowest) units += " ss lowest (lowest value), ";
-        if (k == Figure::Peak) units += " ss peak, ";
-        if (k == Figure::AboveShare) units += " above (share of each interval above the threshold), ";
-        if (k == Figure::Auc24) units += " AUC24 (" + report::auc_unit(o.unit_text) + "), ";
+        if (k == Figure::Lowest) parts.push_back("ss lowest (the lowest value)");
+        if (k == Figure::Peak) parts.push_back("ss peak");
+        if (k == Figure::AboveShare) parts.push_back("above (share of each interval above the threshold)");
+        if (k == Figure::Auc24) parts.push_back("AUC24 (" + report::auc_unit(o.unit_text) + ")");
     }
-    units.resize(units.size() - 2);
+    std::string units = "Figures at steady state, at the dose shown:";
+    for (std::size_t i = 0; i < parts.size(); ++i) units += (i ? ", " : " ") + parts[i];
     if (std::find(figs.begin(), figs.end(), Figure::Lowest) != figs.end() ||
         std::find(figs.begin(), figs.end(), Figure::Peak) != figs.end())
         units += "; concentrations in " + o.unit_text;
@@ -152,17 +162,18 @@ void write_text(std::ostream& out, const Report& r, const std::vector<Found>& fs
     if (r.recommended >= 0) {
         const Found& f = fs[static_cast<std::size_t>(r.recommended)];
         wrap(out,
-             "* recommended (" + std::string(kRule) + "): " + report::num(f.dose, 6) + " mg every " +
+             "* recommended (" + rule(r.goals) + "): " + report::num(f.dose, 6) + " mg every " +
                  duration_text(f.shape.tau) +
-                 (f.shape.over > 0 ? " as " + duration_text(f.shape.over) + " infusions" : " as a bolus") + ", " +
+                 (f.shape.over > 0 ? " as infusions over " + duration_text(f.shape.over) : " as a bolus") + ", " +
                  report::num(f.daily(), 6) + " mg a day.",
              "", "  ");
         if (f.loading && f.loading->problem.empty())
             wrap(out,
                  "  Loading dose: " + report::num(f.loading->dose, 6) + " mg (solved " +
                      report::num(f.loading->exact, 6) + " mg) as the first dose; first-interval " + f.loading->figure +
-                     " " + report::num(f.loading->figure == "trough" ? report::in_output_unit(o, f.loading->first_value)
-                                                                      : f.loading->first_value) +
+                     " " +
+                     report::num(f.loading->figure == "trough" ? report::in_output_unit(o, f.loading->first_value)
+                                                               : f.loading->first_value) +
                      " against " +
                      report::num(f.loading->figure == "trough" ? report::in_output_unit(o, f.loading->steady_value)
                                                                : f.loading->steady_value) +
@@ -176,7 +187,8 @@ void write_text(std::ostream& out, const Report& r, const std::vector<Found>& fs
         const std::string who = "every " + duration_text(f.shape.tau) + ", " +
                                 (f.shape.over > 0 ? "over " + duration_text(f.shape.over) : "bolus") + ": ";
         if (!f.message.empty()) notes.push_back(who + f.message + ".");
-        if (f.loading && !f.loading->problem.empty()) notes.push_back(who + "no loading dose: " + f.loading->problem + ".");
+        if (f.loading && !f.loading->problem.empty())
+            notes.push_back(who + "no loading dose: " + f.loading->problem + ".");
     }
     notes.insert(notes.end(), r.notes.begin(), r.notes.end());
     if (!notes.empty()) {

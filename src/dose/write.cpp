@@ -1,5 +1,6 @@
 #include "dose/write.hpp"
 
+#include <cmath>
 #include <cstdio>
 #include <filesystem>
 #include <sstream>
@@ -33,7 +34,9 @@ std::string str(const std::string& s) {
     return o + "\"";
 }
 
-std::string quantity(double v, const std::string& unit) { return str(unit.empty() ? g12(v) : g12(v) + " " + unit); }
+std::string quantity(double v, const std::string& unit) {
+    return str(unit.empty() ? g12(v) : g12(v) + " " + unit);
+}
 
 }  // namespace
 
@@ -80,8 +83,11 @@ std::string regimen_text(const regimen::Regimen& r, const std::string& header) {
         if (t.window) out << "window = [" << conc(t.window->first) << ", " << conc(t.window->second) << "]\n";
         if (t.auc24) out << "auc24 = [" << auc(t.auc24->first) << ", " << auc(t.auc24->second) << "]\n";
     }
-    out << "\n[horizon]\nuntil = " << quantity(r.horizon.until, "h") << "\nstep = " << quantity(r.horizon.step, "h")
-        << "\n";
+    // The grid step in whole minutes when it is one (a 10-minute step is 0.1666... h).
+    const double minutes = r.horizon.step * 60.0;
+    const bool whole = std::abs(minutes - std::round(minutes)) < 1e-9 * minutes;
+    out << "\n[horizon]\nuntil = " << quantity(r.horizon.until, "h")
+        << "\nstep = " << (whole ? quantity(std::round(minutes), "min") : quantity(r.horizon.step, "h")) << "\n";
     return out.str();
 }
 

@@ -7,6 +7,20 @@
 
 namespace plateau::input::detail {
 
+void Ctx::wants_notes(expr::Ptr e, const Scope& scope, const Want& want) {
+    if (sink.empty() || !e) return;
+    pending_notes.push_back(PendingNotes{sink.size() - 1, std::move(e), &scope, want.what, want.dim});
+}
+
+void Ctx::used_well(const expr::Node& e) {
+    for (auto& name : expr::identifiers(e)) well_used.push_back(std::move(name));
+}
+
+void add_dimension_notes(Ctx& c) {
+    for (const auto& p : c.pending_notes)
+        c.sink.add_notes(p.diagnostic, dimension_notes(*p.e, *p.scope, Want{p.want, p.what}, c.well_used));
+}
+
 void Ctx::text_error(const Value& v, const TextError& e) {
     error(string_pos(doc, v, e.offset()), e.what(), e.expected(), static_cast<int>(e.length()));
 }
@@ -66,11 +80,41 @@ void throw_sorted(const DiagnosticSink& sink, const std::string& path) {
     throw InputError(std::move(ds));
 }
 
+void hoist_misplaced_keys(Document& doc, DiagnosticSink& sink, const std::vector<std::string>& top_keys) {
+    std::vector<Entry> hoisted;
+    auto scan = [&](Value& table, const std::string& header) {
+        for (auto it = table.entries.begin(); it != table.entries.end();) {
+            const bool top = std::find(top_keys.begin(), top_keys.end(), it->key) != top_keys.end();
+            const bool taken = doc.root.find(it->key) != nullptr ||
+                               std::any_of(hoisted.begin(), hoisted.end(), [&](const Entry& h) { return h.key == it->key; });
+            if (!top || taken || it->value.kind != Kind::String) {
+                ++it;
+                continue;
+            }
+            sink.error(it->key_pos,
+                       "'" + it->key + "' is inside the " + header + " table that starts on line " +
+                           std::to_string(table.pos.line) + ": in TOML, every key after a [header] line belongs to "
+                           "that table",
+                       "the line " + it->key + " = \"...\" at the top of the file, before the first [header]",
+                       static_cast<int>(it->key.size()));
+            hoisted.push_back(std::move(*it));
+            it = table.entries.erase(it);
+        }
+    };
+    for (Entry& e : doc.root.entries) {
+        if (e.value.kind == Kind::Table) scan(e.value, "[" + e.key + "]");
+        if (e.value.kind == Kind::Array)
+            for (Value& item : e.value.items)
+                if (item.kind == Kind::Table) scan(item, "[[" + e.key + "]]");
+    }
+    for (Entry& h : hoisted) doc.root.entries.push_back(std::move(h));
+}
+
 void check_keys(Ctx& c, const Value& table, const std::vector<std::string>& allowed, std::string_view where) {
     for (const auto& e : table.entries) {
         if (std::find(allowed.begin(), allowed.end(), e.key) != allowed.end()) continue;
         c.tables_with_unknown_keys.push_back(&table);
-        c.error(e.key_pos, "unknown key '" + e.key + "' in " + std::string(where), one_of(allowed),
+        c.error(e.key_pos, "unknown key '" + e.key + "' in " + std::string(where) + did_you_mean(e.key, allowed), one_of(allowed),
                 static_cast<int>(e.key.size()));
     }
 }
@@ -107,8 +151,40 @@ const Value* get_table(Ctx& c, const Value& table, std::string_view key, bool re
     return get_kind(c, table, key, required, where, std::move(expected), Kind::Table, "a table");
 }
 
+namespace {
+
+// Offset in a quantity string of a "per body weight" or "per body surface area" divisor ("/kg" in "3 mg/kg",
+// "/m^2" in "100 mg/m^2/h"), or npos.
+std::size_t per_body_size(std::string_view text) {
+    static constexpr std::string_view kDivisors[] = {"kg", "g", "lb", "m^2", "m2", "m\xC2\xB2", "BSA"};
+    for (std::size_t slash = text.find('/'); slash != std::string_view::npos; slash = text.find('/', slash + 1)) {
+        std::size_t b = slash + 1;
+        while (b < text.size() && (text[b] == ' ' || text[b] == '(')) ++b;
+        std::size_t e = b;
+        while (e < text.size() && text[e] != '/' && text[e] != '*' && text[e] != ' ' && text[e] != ')') ++e;
+        const std::string_view word = text.substr(b, e - b);
+        for (const auto d : kDivisors)
+            if (word == d) return slash;
+    }
+    return std::string_view::npos;
+}
+
+}  // namespace
+
 std::optional<units::Quantity> quantity(Ctx& c, const Value& v, std::string_view key, std::optional<units::Dim> dim,
                                         std::string example, bool allow_number) {
+    // A dose per kilogram or per square metre needs the patient's size, which a regimen does not have yet.
+    if (v.kind == Kind::String && dim && (*dim == units::kMass || *dim == units::kAmountRate)) {
+        if (const std::size_t at = per_body_size(v.str); at != std::string_view::npos) {
+            c.error(string_pos(c.doc, v, at),
+                    "'" + v.str + "' is a dose per body weight or surface area, which is not supported yet (it will "
+                    "come with patient covariates)",
+                    *dim == units::kMass ? "the amount for this patient, like \"" + example + "\""
+                                         : "the rate for this patient, like \"" + example + "\"",
+                    static_cast<int>(v.str.size() - at));
+            return std::nullopt;
+        }
+    }
     if (v.kind == Kind::String) {
         try {
             return dim ? units::parse_quantity(v.str, *dim) : units::parse_quantity(v.str);
@@ -169,7 +245,8 @@ std::vector<const expr::Node*> variables(const expr::Node& e) {
     return out;
 }
 
-std::optional<Parsed> expression(Ctx& c, const Value& v, std::string_view key, const Scope& scope, bool quantity_ok) {
+std::optional<Parsed> expression(Ctx& c, const Value& v, std::string_view key, const Scope& scope, bool quantity_ok,
+                                 const std::optional<Want>& want) {
     if (v.kind != Kind::String) {
         wrong_kind(c, v, key, "a string", "an expression in a string, like \"cl/v*central\"");
         return std::nullopt;
@@ -219,7 +296,7 @@ std::optional<Parsed> expression(Ctx& c, const Value& v, std::string_view key, c
         if (std::find(scope.forbidden.begin(), scope.forbidden.end(), n->name) != scope.forbidden.end())
             c.error(pos, "'" + n->name + "' cannot be used here: " + scope.forbidden_reason, one_of(allowed), len);
         else
-            c.error(pos, "unknown identifier '" + n->name + "'", one_of(allowed), len);
+            c.error(pos, "unknown identifier '" + n->name + "'" + did_you_mean(n->name, allowed), one_of(allowed), len);
     }
     if (!ok || skip) return std::nullopt;
 
@@ -238,8 +315,52 @@ std::optional<Parsed> expression(Ctx& c, const Value& v, std::string_view key, c
         return Parsed{e, d};
     } catch (const TextError& err) {
         c.text_error(v, err);
+        if (want) c.wants_notes(e, scope, *want);
         return std::nullopt;
     }
+}
+
+std::vector<Note> dimension_notes(const expr::Node& e, const Scope& scope, const Want& want,
+                                  const std::vector<std::string>& skip) {
+    // A wrong dimension is usually one parameter with the wrong unit; the named dimensions are the ones a
+    // parameter of a compartment model has. Only one of them can fit when the parameter matters at all.
+    static constexpr units::Dim kNamed[] = {units::kNone,   units::kMass,       units::kVolume,
+                                            units::kTime,   units::kRate,       units::kConc,
+                                            units::kFlow,   units::kAmountRate, units::kExposure};
+    std::vector<Note> notes;
+    for (const std::string& name : expr::identifiers(e)) {
+        const auto sym = std::find_if(scope.symbols.begin(), scope.symbols.end(),
+                                      [&](const Symbol& s) { return s.name == name; });
+        if (sym == scope.symbols.end() || !sym->constant || sym->pos.line <= 0) continue;
+        if (std::find(skip.begin(), skip.end(), name) != skip.end()) continue;
+        std::vector<units::Dim> fits;
+        for (const units::Dim& d : kNamed) {
+            try {
+                const units::Dim got = expr::infer_dim(
+                    e,
+                    [&](std::string_view n) -> std::optional<units::Dim> {
+                        if (n == name) return d;
+                        for (const auto& s : scope.symbols)
+                            if (s.name == n) return s.dim;
+                        return std::nullopt;
+                    },
+                    [&](std::string_view n) {
+                        for (const auto& s : scope.symbols)
+                            if (s.name == n) return s.constant;
+                        return false;
+                    });
+                if (got == want.dim) fits.push_back(d);
+            } catch (const TextError&) {
+                // This dimension does not fit.
+            }
+        }
+        if (fits.size() != 1 || fits.front() == sym->dim) continue;
+        notes.push_back(Note{sym->pos,
+                             "'" + name + "' is " + units::dim_name(sym->dim) + " here; " + want.what + " needs " +
+                                 units::dim_name(fits.front()),
+                             1});
+    }
+    return notes;
 }
 
 }  // namespace plateau::input::detail

@@ -34,6 +34,21 @@ std::vector<fs::path> toml_files(const std::string& dir) {
     return out;
 }
 
+// Ids of the model files in the directories (file names without .toml), leaving out regimen files kept there.
+std::vector<std::string> model_ids(const std::vector<std::string>& model_dirs) {
+    std::set<std::string> ids;
+    for (const auto& d : model_dirs)
+        for (const auto& f : toml_files(d)) {
+            try {
+                if (file_kind(f.string()) == "regimen") continue;
+            } catch (const InputError&) {
+                // A file that does not parse may still be a model meant to be there.
+            }
+            ids.insert(f.stem().string());
+        }
+    return {ids.begin(), ids.end()};
+}
+
 }  // namespace
 
 namespace detail {
@@ -102,21 +117,18 @@ bool resolve_model(Ctx& c, const Value& ref, const std::vector<std::string>& mod
         c.value_error(ref, "cannot find the model file '" + name + "'", "a model file at " + join(looked));
         return false;
     }
-    std::set<std::string> ids;
-    for (const auto& d : model_dirs)
-        for (const auto& f : toml_files(d)) ids.insert(f.stem().string());
+    const std::vector<std::string> ids = model_ids(model_dirs);
     const std::string paths = "a path to a .toml file relative to this regimen";
-    c.value_error(ref, "unknown model '" + name + "'",
-                  ids.empty() ? "a model id, or " + paths
-                              : one_of(std::vector<std::string>(ids.begin(), ids.end())) + "; or " + paths);
+    c.value_error(ref, "unknown model '" + name + "'" + did_you_mean(name, ids),
+                  ids.empty() ? "a model id, or " + paths : one_of(ids) + "; or " + paths);
     return false;
 }
 
 }  // namespace detail
 
 std::vector<std::string> default_model_dirs() {
-    // The built-in models first, then PLATEAU_MODELS (the command line's --models come after both), so an id
-    // always means the same model whatever way a folder is added.
+    // The built-in models first, then PLATEAU_MODELS; the command line's --models come before both (a folder
+    // named for this one run is what the user means).
     std::vector<std::string> dirs{std::string(PLATEAU_SOURCE_DIR) + "/models"};
     if (const char* env = std::getenv("PLATEAU_MODELS")) {
         std::string s(env);
@@ -138,7 +150,21 @@ std::string file_kind(const std::string& path) {
     return "";
 }
 
-std::vector<model::Model> list_models(const std::vector<std::string>& model_dirs, std::string* problems) {
+void check_model_file_name(const std::string& path, const model::Model& m) {
+    const std::string stem = fs::path(path).stem().string();
+    if (m.id == stem) return;
+    const Document doc = read_document(path);
+    const Entry* id = doc.root.find("id");
+    const SourcePos pos = id != nullptr ? string_pos(doc, id->value, 0) : doc.root.pos;
+    throw InputError({Diagnostic(pos,
+                                 "the model id '" + m.id + "' differs from the file name '" +
+                                     fs::path(path).filename().string() + "'; a model is found by its file name",
+                                 "id = \"" + stem + "\", or the file renamed to " + m.id + ".toml",
+                                 std::max(1, static_cast<int>(m.id.size())))});
+}
+
+std::vector<model::Model> list_models(const std::vector<std::string>& model_dirs, std::string* problems,
+                                      std::vector<std::pair<std::string, std::string>>* hidden) {
     std::vector<model::Model> out;
     std::set<std::string> seen;
     for (const auto& d : model_dirs) {
@@ -148,6 +174,7 @@ std::vector<model::Model> list_models(const std::vector<std::string>& model_dirs
                 if (file_kind(f.string()) == "regimen") continue;
                 model::Model m = load_model(f.string());
                 if (seen.insert(m.id).second) out.push_back(std::move(m));
+                else if (hidden != nullptr) hidden->emplace_back(m.id, f.string());
             } catch (const InputError& e) {
                 if (problems != nullptr) *problems += format_diagnostics(e.diagnostics());
             }

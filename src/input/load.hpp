@@ -3,6 +3,7 @@
 #pragma once
 
 #include <string>
+#include <utility>
 #include <vector>
 
 #include "model/model.hpp"
@@ -23,7 +24,7 @@ model::Model load_model(const std::string& path);
 regimen::Regimen load_regimen(const std::string& path, const std::vector<std::string>& model_dirs);
 
 // The project's built-in model directory, then the directories in PLATEAU_MODELS (colon-separated); callers
-// append those given with --models.
+// put those given with --models in front (cli::model_dirs), so a folder named on the command line wins.
 std::vector<std::string> default_model_dirs();
 
 // What kind of file this is, from its top-level keys: "model" (has [compartments]), "regimen" (has [[doses]]
@@ -31,7 +32,13 @@ std::vector<std::string> default_model_dirs();
 std::string file_kind(const std::string& path);
 
 // Every model file found in the directories (first occurrence of an id wins), loaded; regimen files there are
-// skipped; files that fail to load are reported in `problems` (formatted diagnostics) rather than thrown.
-std::vector<model::Model> list_models(const std::vector<std::string>& model_dirs, std::string* problems = nullptr);
+// skipped; files that fail to load are reported in `problems` (formatted diagnostics) rather than thrown, and
+// files hidden by an earlier model of the same id go to `hidden` as {id, path}.
+std::vector<model::Model> list_models(const std::vector<std::string>& model_dirs, std::string* problems = nullptr,
+                                      std::vector<std::pair<std::string, std::string>>* hidden = nullptr);
+
+// Refuses (InputError at the id) a model file whose id is not its file name without .toml: a model is found by
+// that name, so such a file could never be used by its id.
+void check_model_file_name(const std::string& path, const model::Model& m);
 
 }  // namespace plateau::input

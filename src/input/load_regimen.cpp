@@ -1,6 +1,7 @@
 // Validation of regimen files: parameter overrides, doses and series, targets, horizon, and the limits.
 #include <algorithm>
 #include <cmath>
+#include <cstdio>
 
 #include "input/clock.hpp"
 #include "input/load.hpp"
@@ -62,6 +63,32 @@ void require(Ctx& c, Field& f, bool good, const std::string& message, const std:
     f.ok = false;
 }
 
+// `amount`: a mass ("500 mg"), or a mass per kg of body weight ("15 mg/kg") or per m² of body-surface area
+// ("75 mg/m2"), resolved against the patient once the whole file is read.
+Field amount_field(Ctx& c, const Value& t, regimen::DoseSpec& spec) {
+    const Entry* e = t.find("amount");
+    if (e == nullptr || e->value.kind != Kind::String) return field(c, t, "amount", kMass, "250 mg");
+    const std::string& text = e->value.str;
+    for (const auto& [tail, per] : {std::pair<std::string, regimen::Per>{"/kg", regimen::Per::Kg},
+                                    {"/m2", regimen::Per::M2}, {"/m\xC2\xB2", regimen::Per::M2}}) {
+        if (text.size() <= tail.size() || text.compare(text.size() - tail.size(), tail.size(), tail) != 0) continue;
+        Field f;
+        f.present = true;
+        f.v = &e->value;
+        try {
+            f.value = units::parse_quantity(std::string_view(text).substr(0, text.size() - tail.size()), kMass).value;
+            f.ok = true;
+            spec.per_size = per;
+            spec.per_amount = f.value;
+        } catch (const TextError&) {
+            c.value_error(e->value, "cannot read the amount '" + text + "'",
+                          "a mass per body size, like \"15 mg/kg\" or \"75 mg/m2\"");
+        }
+        return f;
+    }
+    return field(c, t, "amount", kMass, "250 mg");
+}
+
 DoseEntry parse_dose(Ctx& c, const Value& t, int number, const model::Model* m, const std::optional<double>& start_clock) {
     DoseEntry d;
     d.number = number;
@@ -82,7 +109,7 @@ DoseEntry parse_dose(Ctx& c, const Value& t, int number, const model::Model* m, 
         if (m != nullptr) {
             d.spec.route_index = m->route_index(route->str);
             if (d.spec.route_index < 0) {
-                c.value_error(*route, "unknown route '" + route->str + "'",
+                c.value_error(*route, "unknown route '" + route->str + "'" + did_you_mean(route->str, routes),
                               routes.empty() ? "a route, but the model defines none in [routes]" : one_of(routes));
                 ok = false;
             }
@@ -91,7 +118,7 @@ DoseEntry parse_dose(Ctx& c, const Value& t, int number, const model::Model* m, 
         ok = false;
     }
 
-    Field amount = field(c, t, "amount", kMass, "250 mg");
+    Field amount = amount_field(c, t, d.spec);
     // `at` may be a clock time ("14:00", "day 2 08:00") when the file states the clock time at t = 0.
     Field at;
     const Entry* at_e = t.find("at");
@@ -218,11 +245,18 @@ void load_overrides(Ctx& c, const Value& table, const model::Model& m, regimen::
     for (const Entry& e : table.entries) {
         int idx = m.parameter_index(e.key);
         if (idx < 0) {
-            c.error(e.key_pos, "unknown parameter '" + e.key + "' in model '" + m.id + "'", one_of(names),
+            c.error(e.key_pos, "unknown parameter '" + e.key + "' in model '" + m.id + "'" + did_you_mean(e.key, names), one_of(names),
                     static_cast<int>(e.key.size()));
             continue;
         }
         const model::Parameter& p = m.parameters[static_cast<std::size_t>(idx)];
+        if (p.kind != model::ParamKind::Fixed) {
+            c.error(e.key_pos, "'" + e.key + "' is a " + (p.kind == model::ParamKind::Covariate ? "covariate" : "derived parameter") +
+                                   " of model '" + m.id + "'",
+                    p.kind == model::ParamKind::Covariate ? "its value in [patient]" : "values for its inputs instead",
+                    static_cast<int>(e.key.size()));
+            continue;
+        }
         std::string example = fmt(units::to_unit(p.value, p.unit));
         if (!p.unit_text.empty()) example += " " + p.unit_text;
         auto q = quantity(c, e.value, e.key, p.dim, example, p.dim.dimensionless());
@@ -284,7 +318,7 @@ void load_targets(Ctx& c, const Value* t, const model::Model& m, regimen::Target
     if (t != nullptr) {
         if (const Value* o = get_string(c, *t, "output", false, "[targets]", "output = \"<output name>\"")) {
             idx = m.output_index(o->str);
-            if (idx < 0) c.value_error(*o, "unknown output '" + o->str + "' in model '" + m.id + "'", one_of(names));
+            if (idx < 0) c.value_error(*o, "unknown output '" + o->str + "' in model '" + m.id + "'" + did_you_mean(o->str, names), one_of(names));
         }
     }
     if (idx < 0) return;
@@ -362,8 +396,24 @@ void load_horizon(Ctx& c, const Value* t, regimen::Horizon& out, const Value*& u
 }
 
 // Checks across [[doses]] and [horizon]: totals, the default horizon, doses past the end, the grid size.
-void check_schedule(Ctx& c, const std::vector<DoseEntry>& doses, regimen::Horizon& h, const Value* until_v,
-                    const Value* step_v, const Value& root) {
+// The lag of each entry's route with the regimen's parameter values (0 without a model or a lag).
+std::vector<double> entry_lags(const std::vector<DoseEntry>& doses, const model::Model* m, const regimen::Regimen& r) {
+    std::vector<double> lags(doses.size(), 0.0);
+    if (m == nullptr) return lags;
+    const std::vector<double> values = r.parameter_values();
+    for (std::size_t i = 0; i < doses.size(); ++i) {
+        const int ri = doses[i].spec.route_index;
+        if (ri < 0 || static_cast<std::size_t>(ri) >= m->routes.size()) continue;
+        const auto& route = m->routes[static_cast<std::size_t>(ri)];
+        if (!route.lag) continue;
+        const double lag = model::evaluate_constant(*m, *route.lag, values);
+        if (std::isfinite(lag) && lag > 0.0) lags[i] = lag;
+    }
+    return lags;
+}
+
+void check_schedule(Ctx& c, const std::vector<DoseEntry>& doses, const std::vector<double>& lags, regimen::Horizon& h,
+                    const Value* until_v, const Value* step_v, const Value& root, std::vector<regimen::Warning>& warnings) {
     long long total = 0;
     double mass = 0.0;
     for (const auto& d : doses) {
@@ -389,13 +439,17 @@ void check_schedule(Ctx& c, const std::vector<DoseEntry>& doses, regimen::Horizo
     auto last_time = [](const regimen::DoseSpec& s) { return s.last_time(); };
     if (until_v == nullptr) {
         const DoseEntry* latest = nullptr;
-        double end_of_input = 0.0;
-        for (const auto& d : doses) {
+        double end_of_input = 0.0, latest_lag = 0.0;
+        for (std::size_t i = 0; i < doses.size(); ++i) {
+            const auto& d = doses[i];
             double last = last_time(d.spec);
             if (latest == nullptr || last > last_time(latest->spec) ||
-                (last == last_time(latest->spec) && d.spec.every > latest->spec.every))
+                (last == last_time(latest->spec) && d.spec.every > latest->spec.every)) {
                 latest = &d;
-            end_of_input = std::max(end_of_input, last + d.spec.over);
+                latest_lag = lags[i];
+            }
+            // A route's lag delays the input: the horizon covers the delayed last dose too.
+            end_of_input = std::max(end_of_input, last + lags[i] + d.spec.over);
         }
         if (latest == nullptr) return;
         const double last = last_time(latest->spec);
@@ -405,12 +459,18 @@ void check_schedule(Ctx& c, const std::vector<DoseEntry>& doses, regimen::Horizo
                     "doses within 10 years (" + hours(regimen::kMaxHorizonHours) + ")");
             return;
         }
-        h.until = std::max(last + std::max(latest->spec.every, 24.0), end_of_input);
+        h.until = std::max(last + latest_lag + std::max(latest->spec.every, 24.0), end_of_input);
         h.until = std::min(h.until, regimen::kMaxHorizonHours);
     } else {
-        for (const auto& d : doses) {
+        for (std::size_t i = 0; i < doses.size(); ++i) {
+            const auto& d = doses[i];
             const regimen::DoseSpec& s = d.spec;
             const double last = last_time(s);
+            if (regimen::before(last, h.until) && !regimen::before(last + lags[i], h.until)) {
+                warnings.push_back({s.pos, entry_name(d) + ": the route's lag (" + hours(lags[i]) + ") delays the last dose, at " +
+                                               hours(last) + ", to the end of the horizon or later: it has no effect"});
+                continue;
+            }
             if (regimen::before(last, h.until)) continue;
             // The first dose of the entry at or after the horizon end.
             long k = 1;
@@ -436,6 +496,38 @@ void check_schedule(Ctx& c, const std::vector<DoseEntry>& doses, regimen::Horizo
     }
 }
 
+// Times the file writes as different but that are one instant to the engine, and infusions shorter than that
+// resolution (given as boluses): they run, but not quite as written, so the user is told.
+void resolution_warnings(regimen::Regimen& r) {
+    struct Written {
+        double t;
+        std::size_t entry;
+    };
+    std::vector<Written> times;
+    for (std::size_t e = 0; e < r.doses.size(); ++e) {
+        const auto& d = r.doses[e];
+        for (long n = 1; n <= d.doses(); ++n) times.push_back({d.dose_time(n), e});
+        if (d.over > 0.0 && !regimen::before(d.first_time(), d.first_time() + d.over))
+            r.warnings.push_back({d.pos, "[[doses]] entry " + std::to_string(e + 1) + ": the infusion lasts " + fmt(d.over) +
+                                             " h, shorter than the time resolution (" +
+                                             fmt(regimen::instant_tolerance(d.first_time())) +
+                                             " h): each dose is given as a bolus"});
+    }
+    std::sort(times.begin(), times.end(), [](const Written& a, const Written& b) { return a.t < b.t; });
+    for (std::size_t i = 1; i < times.size(); ++i) {
+        const Written &a = times[i - 1], &b = times[i];
+        if (a.t == b.t || !regimen::same_instant(a.t, b.t)) continue;
+        char buf[96];
+        std::snprintf(buf, sizeof buf, "doses at %.12g h and %.12g h", a.t, b.t);
+        r.warnings.push_back({r.doses[b.entry].pos, std::string(buf) +
+                                                        " are closer than the time resolution (1e-9 of the time, at "
+                                                        "least 1e-9 h) and are given at one instant"});
+        break;  // one is enough to point at the problem
+    }
+    std::stable_sort(r.warnings.begin(), r.warnings.end(),
+                     [](const regimen::Warning& a, const regimen::Warning& b) { return a.pos.line < b.pos.line; });
+}
+
 }  // namespace
 
 }  // namespace detail
@@ -444,6 +536,7 @@ regimen::Regimen load_regimen(const std::string& path, const std::vector<std::st
     using namespace detail;
     Document doc = read_document(path);
     DiagnosticSink sink;
+    hoist_misplaced_keys(doc, sink, {"id", "model", "about", "start_clock"});
     Ctx c{doc, sink};
     regimen::Regimen r;
     r.path = path;
@@ -452,7 +545,7 @@ regimen::Regimen load_regimen(const std::string& path, const std::vector<std::st
         c.error(root.pos, "empty file: no regimen in it", "a regimen file with id, model and [[doses]]");
         sink.throw_if_any();
     }
-    check_keys(c, root, {"id", "model", "about", "start_clock", "parameters", "doses", "targets", "horizon"},
+    check_keys(c, root, {"id", "model", "about", "start_clock", "parameters", "patient", "doses", "targets", "horizon"},
                "a regimen file");
     if (const Entry* sc = root.find("start_clock"))
         if (auto ct = clock_time(c, sc->value, "start_clock", false)) r.start_clock = ct->hour;
@@ -475,6 +568,9 @@ regimen::Regimen load_regimen(const std::string& path, const std::vector<std::st
         std::vector<const Value*> values;
         if (m != nullptr) load_overrides(c, *p, *m, r, values);
     }
+
+    const Value* patient = get_table(c, root, "patient", false, "the regimen file", "[patient] with lines like wt = \"82 kg\"");
+    if (patient != nullptr && m != nullptr) load_patient(c, *patient, *m, r);
 
     std::vector<DoseEntry> doses;
     bool doses_ok = true;
@@ -515,8 +611,11 @@ regimen::Regimen load_regimen(const std::string& path, const std::vector<std::st
     bool horizon_ok = true;
     load_horizon(c, horizon, r.horizon, until_v, step_v, horizon_ok);
 
-    if (doses_ok && horizon_ok) check_schedule(c, doses, r.horizon, until_v, step_v, root);
+    if (doses_ok && horizon_ok)
+        check_schedule(c, doses, entry_lags(doses, m, r), r.horizon, until_v, step_v, root, r.warnings);
     for (auto& d : doses) r.doses.push_back(d.spec);
+    if (doses_ok && m != nullptr) resolve_per_size(c, r);
+    if (sink.empty()) resolution_warnings(r);
 
     throw_sorted(sink, path);
     return r;

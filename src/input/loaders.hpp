@@ -26,6 +26,15 @@ std::vector<RouteConstantProblem> route_constant_problems(const model::Model& m,
 std::string route_constant_message(const std::string& route_name, const RouteConstantProblem& p);
 std::string route_constant_expected(const RouteConstantProblem& p);
 
+// [patient]: the model's covariates for this patient, and the body size (wt, ht) per-size amounts use.
+void load_patient(Ctx& c, const Value& table, const model::Model& m, regimen::Regimen& r);
+
+// Sets the amount of each per-kg / per-m² dose entry for the patient; reports a missing weight or height.
+void resolve_per_size(Ctx& c, regimen::Regimen& r);
+
+// A height: "178 cm" or "1.78 m", in cm. Throws TextError.
+double parse_height(std::string_view text);
+
 // Resolves and loads the model a regimen names (see load.hpp). On failure reports into c.sink (the model
 // file's own diagnostics are copied) and returns false.
 bool resolve_model(Ctx& c, const Value& ref, const std::vector<std::string>& model_dirs, model::Model& out);

@@ -77,6 +77,10 @@ struct Steady {
     std::optional<double> within_5pct;
     int newton_iterations = 0;
     traj::Trajectory period;          // one steady-state cycle, t = 0 .. interval (for plots)
+
+    // The lowest value comes after a dose rather than just before one (an absorption lag, a slow input), by
+    // more than round-off: writers then show it beside the trough.
+    bool dips_below_trough() const { return minimum.value < trough * (1 - 1e-9); }
 };
 
 struct Exposure {

@@ -3,6 +3,7 @@
 #pragma once
 
 #include <optional>
+#include <span>
 #include <string>
 #include <vector>
 
@@ -12,8 +13,15 @@
 
 namespace plateau::model {
 
+// Where a parameter's value comes from. Covariates and derived parameters are parameters to the engine (one
+// constant slot each on the tape); they differ only in how a subject's value is set, once per subject.
+enum class ParamKind { Fixed, Covariate, Derived };
+
 struct Parameter {
     std::string name;
+    ParamKind kind = ParamKind::Fixed;
+    std::string expr_text;   // Derived: the expression as written
+    expr::Ptr expr;          // Derived: over fixed parameters, covariates and earlier derived parameters
     double value = 0.0;      // canonical
     units::Dim dim{};
     std::string unit_text;   // as written in the file, for display ("L/h"); empty for dimensionless
@@ -55,6 +63,23 @@ struct Route {
     SourcePos pos;
 };
 
+// Between-subject variability of one parameter: a random effect η ~ N(0, ω²) (jointly normal with the others).
+enum class Spread {
+    LogNormal,    // typical × exp(η)               ("30 %": CV, ω² = ln(1 + CV²))
+    LogitNormal,  // logistic(logit(typical) + η)   (fractions that must stay inside (0, 1))
+    Normal,       // typical + η                     (ω in the parameter's canonical unit)
+};
+
+struct Variability {
+    std::string name;
+    int index = -1;            // parameter index
+    Spread spread = Spread::LogNormal;
+    double omega = 0.0;        // standard deviation of η
+    double cv = 0.0;           // LogNormal: the coefficient of variation as written (fraction)
+    std::string text;          // as written, for display ("30 %")
+    SourcePos pos;
+};
+
 struct Model {
     std::string id;
     std::string summary;
@@ -64,6 +89,8 @@ struct Model {
     std::vector<Rate> rates;          // one per compartment, same order
     std::vector<Output> outputs;
     std::vector<Route> routes;
+    std::vector<Variability> variability;   // in file order
+    std::vector<double> correlation;        // variability.size()² row-major; empty = independent
 
     int parameter_index(std::string_view name) const;
     int compartment_index(std::string_view name) const;
@@ -71,6 +98,18 @@ struct Model {
     int route_index(std::string_view name) const;
     std::vector<double> default_values() const;   // parameter values in order
 };
+
+// The model's parameter values for one subject: `values` holds every parameter (covariates set to the
+// subject's), derived parameters are recomputed from them in order, then the random effects `eta` (one per
+// variability entry, may be empty = typical subject) are applied. Fixed parameters get theirs before the derived
+// ones are computed, so a derived parameter sees a varied input.
+void individualize(const Model& m, std::vector<double>& values, std::span<const double> eta);
+
+// The covariance Ω of the random effects (ω_i ω_j ρ_ij), row-major.
+std::vector<double> omega_matrix(const Model& m);
+
+// Lower Cholesky factor of a symmetric n×n matrix (row-major); empty if it is not positive definite.
+std::vector<double> cholesky(const std::vector<double>& a, std::size_t n);
 
 // Evaluates a constant expression (fraction, lag) with the given parameter values.
 double evaluate_constant(const Model& m, const expr::Node& e, const std::vector<double>& parameter_values);

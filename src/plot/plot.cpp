@@ -331,9 +331,14 @@ std::string build_script(const Figure& f, Format fmt, const std::string& output,
         items.push_back(num(*f.threshold) + " with lines lw 1.5 lc rgb '" + kThresholdColour +
                         "' dt (7,4) title " + gp_quote(label));
     }
-    if (f.band && !f.band_label.empty())
+    if (f.band) {
+        // Like the threshold line, the shaded band always has its key entry: a shade nobody explains is noise.
+        const std::string label = f.band_label.empty()
+                                      ? "window " + num(f.band->first) + "\xE2\x80\x93" + num(f.band->second)
+                                      : f.band_label;
         items.push_back(std::string("keyentry with boxes fillcolor rgb '") + kBandColour +
-                        "' fillstyle transparent solid 0.15 noborder title " + gp_quote(f.band_label));
+                        "' fillstyle transparent solid 0.15 noborder title " + gp_quote(label));
+    }
 
     s << "set samples 2\nplot ";
     for (std::size_t i = 0; i < items.size(); ++i) s << (i ? ", \\\n     " : "") << items[i];

@@ -21,7 +21,7 @@ struct Figure {
   std::vector<std::vector<double>> dose_marks;                      // per curve: dose times, small ticks at the bottom in the curve's colour
   double x_min = 0, x_max = 0;                                       // 0,0: auto from the data
   int width = 900, height = 420;                                     // pixels (pdf: scaled to inches at 96 dpi)
-  std::string band_label;                                            // key entry for the band; empty: none
+  std::string band_label;                                            // key entry for the band; empty: "window <low>–<high>"
 };
 
 class PlotError : public std::runtime_error { using std::runtime_error::runtime_error; };

@@ -38,6 +38,11 @@ Figures figures_of(const Candidate& c) {
     if (!e.days.empty()) f.auc24_day1 = e.days.front().auc;
     if (e.above) {
         f.above_day1_hours = e.days.empty() ? 0.0 : e.days.front().above_hours;
+        for (std::size_t d = 0; d < e.days.size(); ++d)
+            if (!e.days[d].partial && (!f.above_worst_day_hours || e.days[d].above_hours < *f.above_worst_day_hours)) {
+                f.above_worst_day_hours = e.days[d].above_hours;
+                f.above_worst_day = static_cast<int>(d) + 1;
+            }
         f.first_reached = e.first_reached;
     }
     if (e.steady) {
@@ -107,7 +112,7 @@ std::vector<Row> comparison_rows(const std::vector<Candidate>& cs) {
         // verdict uses it, so the table shows it.
         const bool any_lowest = std::any_of(cs.begin(), cs.end(), [](const Candidate& c) {
             const auto& st = c.exposure.steady;
-            return st && st->found && st->minimum.value < st->trough * (1 - 1e-9);
+            return st && st->found && st->dips_below_trough();
         });
         if (any_lowest)
             add("Steady-state lowest", u, [](const Candidate& c, const Figures& f) {
@@ -133,6 +138,17 @@ std::vector<Row> comparison_rows(const std::vector<Candidate>& cs) {
         });
     if (any_above) {
         add("Time above threshold, day 1", "h", [](const Candidate&, const Figures& f) { return opt_hours(f.above_day1_hours); });
+        // The day a missed or late dose hurts most: shown when some regimen runs more than one full day.
+        const bool several_days = std::any_of(cs.begin(), cs.end(), [](const Candidate& c) {
+            return std::count_if(c.exposure.days.begin(), c.exposure.days.end(),
+                                 [](const metrics::Day& d) { return !d.partial; }) > 1;
+        });
+        if (several_days)
+            add("Time above threshold, worst day", "h", [](const Candidate&, const Figures& f) {
+                return f.above_worst_day_hours
+                           ? opt_hours(f.above_worst_day_hours) + " d" + std::to_string(f.above_worst_day)
+                           : std::string("—");
+            });
         if (any_steady)
             add("Time above threshold, ss", "% of τ", [](const Candidate&, const Figures& f) { return opt_percent(f.above_ss_fraction); });
         add("First reaches threshold", "h", [](const Candidate&, const Figures& f) {
@@ -165,21 +181,75 @@ std::vector<TargetCheck> target_checks(const std::vector<Candidate>& cs) {
     return out;
 }
 
+namespace {
+
+// The share of the compared doses (the repeating cycle's, else all) that reaches the circulation, by each
+// route's fraction with the regimen's parameter values, and the routes as words ("oral, 60 %").
+struct Uptake {
+    double fraction = 1.0;
+    std::string routes;              // "oral 60.0 %"
+    std::vector<std::string> names;  // "oral"
+};
+
+Uptake uptake_of(const Candidate& c) {
+    const model::Model& m = c.regimen.model;
+    const std::vector<double> values = c.regimen.parameter_values();
+    const std::vector<sim::Dose>& doses = c.schedule.cycle ? c.schedule.cycle->doses : c.schedule.doses;
+    double given = 0.0, reached = 0.0;
+    std::vector<int> seen;
+    Uptake u;
+    for (const auto& d : doses) {
+        if (d.route < 0 || static_cast<std::size_t>(d.route) >= m.routes.size()) continue;
+        const model::Route& r = m.routes[static_cast<std::size_t>(d.route)];
+        const double f = r.fraction ? model::evaluate_constant(m, *r.fraction, values) : 1.0;
+        given += d.amount;
+        reached += d.amount * f;
+        if (std::find(seen.begin(), seen.end(), d.route) != seen.end()) continue;
+        seen.push_back(d.route);
+        u.names.push_back(r.name);
+        u.routes += (u.routes.empty() ? "" : ", ") + r.name + " " + percent(f);
+    }
+    if (given > 0) u.fraction = reached / given;
+    return u;
+}
+
+}  // namespace
+
 std::vector<std::string> summary_sentences(const std::vector<Candidate>& cs) {
     std::vector<std::string> out;
     if (cs.size() < 2) return out;
     const auto& o = output_of(cs.front());
     const Figures a = figures_of(cs.front());
+    const Uptake ua = uptake_of(cs.front());
     const std::string A = cs.front().letter;
     for (std::size_t i = 1; i < cs.size(); ++i) {
         const Figures b = figures_of(cs[i]);
+        const Uptake ub = uptake_of(cs[i]);
         const std::string B = cs[i].letter;
         if (a.above_ss_fraction && b.above_ss_fraction && std::abs(*a.above_ss_fraction - *b.above_ss_fraction) >= 0.01)
             out.push_back(B + " is above the threshold for " + percent(*b.above_ss_fraction) +
                           " of each interval at steady state, against " + percent(*a.above_ss_fraction) + " for " + A + ".");
         if (b.above_window_ss_fraction && *b.above_window_ss_fraction >= 0.005)
             out.push_back(B + " spends " + percent(*b.above_window_ss_fraction) + " of each interval above the window.");
-        if (a.ss_peak && b.ss_peak && a.dose_per_day > 0 && *a.ss_average > 0) {
+        if (a.ss_peak && b.ss_peak && a.dose_per_day > 0 && *a.ss_average > 0 && ua.fraction > 0 &&
+            std::abs(ub.fraction / ua.fraction - 1.0) > 0.01) {
+            // Different shares reach the circulation (an oral dose against an IV one): compare what arrives,
+            // or a bioavailability of 0.6 reads as "exposure not proportional to dose".
+            const double dose_ratio = b.dose_per_day / a.dose_per_day;
+            const double reach_ratio = dose_ratio * ub.fraction / ua.fraction;
+            const double exposure_ratio = *b.ss_average / *a.ss_average;
+            const bool proportional = std::abs(exposure_ratio / reach_ratio - 1.0) <= 0.15;
+            std::vector<std::string> na = ua.names, nb = ub.names;
+            std::sort(na.begin(), na.end());
+            std::sort(nb.begin(), nb.end());
+            out.push_back(B + " gives " + num(dose_ratio, 3) + " times " + A + "'s daily dose" +
+                          (na == nb ? std::string(" (") : std::string(" by another route (")) + B +
+                          ": " + ub.routes + " reaches the circulation; " + A + ": " + ua.routes + "), so " +
+                          num(reach_ratio, 3) + " times as much reaches the circulation" +
+                          (proportional ? ", and its steady-state average is " + num(exposure_ratio, 3) + " times " + A + "'s."
+                                        : ", but its steady-state average is " + num(exposure_ratio, 3) + " times " + A +
+                                              "'s: exposure is not proportional to the dose that reaches the circulation."));
+        } else if (a.ss_peak && b.ss_peak && a.dose_per_day > 0 && *a.ss_average > 0) {
             const double dose_ratio = b.dose_per_day / a.dose_per_day;
             const double exposure_ratio = *b.ss_average / *a.ss_average;
             if (std::abs(dose_ratio - 1.0) > 0.01 && std::abs(exposure_ratio / dose_ratio - 1.0) > 0.15)

@@ -34,6 +34,8 @@ struct Figures {
     double auc24_day1 = 0.0;
     std::optional<double> auc24_ss;
     std::optional<double> above_day1_hours;        // threshold set
+    std::optional<double> above_worst_day_hours;   // threshold set: the full 24-h day with the least time above
+    int above_worst_day = 0;                       // ... its number (1-based)
     std::optional<double> above_ss_fraction;       // threshold set and steady state found
     std::optional<double> window_ss_fraction;      // window set and steady state found
     std::optional<double> above_window_ss_fraction;

@@ -8,6 +8,7 @@
 
 #include "core/diagnostic.hpp"
 #include "regimen/regimen.hpp"
+#include "regimen/time.hpp"
 #include "units/units.hpp"
 
 namespace plateau::report {
@@ -15,7 +16,7 @@ namespace plateau::report {
 namespace {
 
 // Grid points closer than this to the end are the end.
-double end_tolerance(double end) { return 1e-9 * std::max(1.0, std::abs(end)); }
+double end_tolerance(double end) { return regimen::instant_tolerance(end); }
 
 void append_number(std::string& line, double x) {
     char buf[32];

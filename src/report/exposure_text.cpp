@@ -24,7 +24,9 @@ void write_exposure_text(std::ostream& out, const regimen::Regimen& r, const sim
     const std::string au = auc_unit(u);
     const int dg = opt.digits;
     auto c = [&](double v) { return num(in_output_unit(o, v), dg) + " " + u; };
-    auto at = [](double t) { return " at " + num(t, 6) + " h"; };
+    // A time in hours, and as day and clock time when asked.
+    auto when = [&](double t) { return num(t, 6) + " h" + (opt.clock ? " (" + day_clock(t, *opt.clock) + ")" : ""); };
+    auto at = [&](double t) { return " at " + when(t); };
     (void)s;
 
     out << "Exposure of '" << o.name << "' (" << u << ") from " << num(e.start, 6) << " to " << num(e.end, 6) << " h\n";
@@ -43,7 +45,7 @@ void write_exposure_text(std::ostream& out, const regimen::Regimen& r, const sim
     }
     if (e.above) {
         row(out, "Time above " + c(*e.above), hours(e.above_hours) + " (" + percent(e.above_fraction) + " of the horizon)");
-        row(out, "First reaches " + c(*e.above), e.first_reached ? "at " + num(*e.first_reached, 6) + " h" : "never");
+        row(out, "First reaches " + c(*e.above), e.first_reached ? "at " + when(*e.first_reached) : "never");
         std::string xs;
         for (std::size_t i = 0; i < e.crossings.size() && i < 3; ++i)
             xs += (i ? ", " : "") + num(e.crossings[i].time, 6) + (e.crossings[i].up ? " up" : " down");
@@ -65,15 +67,18 @@ void write_exposure_text(std::ostream& out, const regimen::Regimen& r, const sim
         const std::size_t wcol = 10;
         out << "  ";
         for (const auto& h : head) out << pad_left(h, wcol);
+        if (opt.clock) out << pad_left("starts", 13);
         out << '\n';
         auto line = [&](const metrics::Interval& iv) {
-            out << "  " << pad_left(num(iv.start, 8), wcol) << pad_left(num(iv.end, 8), wcol)
-                << pad_left(num(in_output_unit(o, iv.peak.value)), wcol) << pad_left(num(iv.peak.time, 8), wcol)
+            // Times with the 6 significant digits of every other time in this report (to 0.001 h below 1000 h).
+            out << "  " << pad_left(num(iv.start, 6), wcol) << pad_left(num(iv.end, 6), wcol)
+                << pad_left(num(in_output_unit(o, iv.peak.value)), wcol) << pad_left(num(iv.peak.time, 6), wcol)
                 << pad_left(num(in_output_unit(o, iv.trough)), wcol)
                 << pad_left(num(in_output_unit(o, iv.minimum.value)), wcol)
                 << pad_left(num(in_output_unit(o, iv.auc), 5), wcol);
             if (e.above) out << pad_left(num(iv.above_hours, 4), wcol);
             if (e.window) out << pad_left(num(iv.window_hours, 4), wcol);
+            if (opt.clock) out << pad_left(day_clock(iv.start, *opt.clock), 13);
             out << (iv.partial ? " *" : "") << '\n';
         };
         const std::size_t n = e.intervals.size();
@@ -113,7 +118,7 @@ void write_exposure_text(std::ostream& out, const regimen::Regimen& r, const sim
             } else {
                 row(out, "Trough", c(st.trough) + " (just before the next dose)");
             }
-            if (st.minimum.value < st.trough * (1 - 1e-9))
+            if (st.dips_below_trough())
                 row(out, "Lowest", c(st.minimum.value) + ", " + num(st.minimum.time, 6) + " h " + after_cycle_start(st));
         }
         row(out, "Average", c(st.average));
@@ -130,8 +135,8 @@ void write_exposure_text(std::ostream& out, const regimen::Regimen& r, const sim
         }
         row(out, "Accumulation ratio (AUC)",
             num(st.accumulation, 5) + " (steady state / one " + cycle_noun(st) + "'s doses alone)");
-        row(out, "Within 10 % of steady state", st.within_10pct ? "from " + num(*st.within_10pct, 5) + " h" : "not within the horizon");
-        row(out, "Within 5 % of steady state", st.within_5pct ? "from " + num(*st.within_5pct, 5) + " h" : "not within the horizon");
+        row(out, "Within 10 % of steady state", st.within_10pct ? "from " + when(*st.within_10pct) : "not within the horizon");
+        row(out, "Within 5 % of steady state", st.within_5pct ? "from " + when(*st.within_5pct) : "not within the horizon");
     }
     const auto vs = verdicts(r.targets, o, e);
     if (!vs.empty()) {

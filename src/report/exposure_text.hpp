@@ -1,6 +1,7 @@
 // The exposure figures of one regimen as aligned terminal text (fits 100 columns, no colour).
 #pragma once
 
+#include <optional>
 #include <ostream>
 
 #include "metrics/exposure.hpp"
@@ -14,6 +15,7 @@ struct TextOptions {
     int head = 4;                 // intervals shown at the start ...
     int tail = 3;                 // ... and at the end, when not all
     int digits = 6;               // significant digits of concentrations and AUCs
+    std::optional<double> clock;  // the clock hour at t = 0: times also shown as day and clock time
 };
 
 // Overall figures, the per-interval table and the steady-state block.

@@ -71,4 +71,14 @@ std::string pad_left(std::string_view s, std::size_t width) {
     return out + std::string(s);
 }
 
+std::string day_clock(double t, double start_clock) {
+    // Minutes from t = 0, rounded; day d covers hours [24(d−1), 24d) from t = 0, not from midnight.
+    const long minutes = std::lround(t * 60.0);
+    const long day = (minutes >= 0 ? minutes / 1440 : -((-minutes + 1439) / 1440)) + 1;
+    const long of_day = ((minutes + std::lround(start_clock * 60.0)) % 1440 + 1440) % 1440;
+    char buf[48];
+    std::snprintf(buf, sizeof buf, "day %ld %02ld:%02ld", day, of_day / 60, of_day % 60);
+    return buf;
+}
+
 }  // namespace plateau::report

@@ -19,6 +19,10 @@ std::string num(double v, int sig = 4);
 // Hours with a fixed number of decimals ("31.83 h"); "—" when absent.
 std::string hours(std::optional<double> h, int decimals = 2);
 
+// A time in hours from t = 0 as day and clock time, with `start_clock` the hour of the day at t = 0:
+// "day 2 14:05" (day 1 is the first 24 h from t = 0; minutes rounded).
+std::string day_clock(double t, double start_clock);
+
 // Percentage with one decimal ("63.4 %").
 std::string percent(double fraction);
 

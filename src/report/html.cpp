@@ -145,13 +145,37 @@ void inputs(std::ostream& out, const Candidate& c) {
             << num(p.value / p.unit.factor, 6) << " " << esc(p.unit_text) << "</td><td>" << esc(p.about) << "</td></tr>\n";
     }
     out << "</tbody></table>\n";
-    out << "<table class=\"small\"><thead><tr><th>Dose entry</th><th>Route</th><th>Amount</th><th>First at</th>"
-           "<th>Every</th><th>Count</th><th>Given over</th></tr></thead><tbody>\n";
+    out << "<table class=\"small\"><thead><tr><th>Dose entry</th><th>Route</th><th>Amount</th><th class=\"t\">When</th>"
+           "<th>Doses</th><th>Given over</th><th class=\"t\">As taken</th></tr></thead><tbody>\n";
     for (std::size_t i = 0; i < r.doses.size(); ++i) {
         const auto& d = r.doses[i];
+        auto clock = [&](double t) { return r.start_clock ? " (" + day_clock(t, *r.start_clock) + ")" : std::string(); };
+        std::string when;
+        if (d.offsets.size() > 1 || (r.start_clock && d.every == 24.0 && d.count > 1)) {
+            when = "daily at";
+            for (std::size_t k = 0; k < d.offsets.size(); ++k)
+                when += (k ? ", " : " ") + (r.start_clock ? day_clock(d.offsets[k], *r.start_clock).substr(6)
+                                                          : "+" + num(d.offsets[k], 6) + " h");
+            when += ", " + std::to_string(d.count) + " days";
+        } else if (d.count > 1) {
+            when = "from " + num(d.first_time(), 6) + " h" + clock(d.first_time()) + ", every " + num(d.every, 6) + " h";
+        } else {
+            when = "at " + num(d.first_time(), 6) + " h" + clock(d.first_time());
+        }
+        std::string changes;
+        for (const auto& dev : d.deviations) {
+            std::string one = "dose " + std::to_string(dev.number);
+            switch (dev.kind) {
+                case regimen::Deviation::Kind::Missed: one += " missed"; break;
+                case regimen::Deviation::Kind::Late: one += " " + num(dev.delay, 6) + " h late"; break;
+                case regimen::Deviation::Kind::Doubled: one += " doubled"; break;
+            }
+            changes += (changes.empty() ? "" : "; ") + one;
+        }
         out << "<tr><td>" << i + 1 << "</td><td>" << esc(d.route) << "</td><td>" << num(d.amount, 6) << " mg</td><td>"
-            << num(d.at, 6) << " h</td><td>" << (d.count > 1 ? num(d.every, 6) + " h" : "—") << "</td><td>" << d.count
-            << "</td><td>" << (d.over > 0 ? num(d.over, 6) + " h" : "at once") << "</td></tr>\n";
+            << esc(when) << "</td><td>" << d.doses() << "</td><td>"
+            << (d.over > 0 ? num(d.over, 6) + " h" : "at once") << "</td><td>" << esc(changes.empty() ? "as prescribed" : changes)
+            << "</td></tr>\n";
     }
     out << "</tbody></table>\n";
 }
@@ -195,7 +219,7 @@ void figures_table(std::ostream& out, const Candidate& c) {
             } else {
                 rows.push_back({"Steady state: trough", v(st.trough)});
             }
-            if (st.minimum.value < st.trough * (1 - 1e-9))
+            if (st.dips_below_trough())
                 rows.push_back({"Steady state: lowest", v(st.minimum.value) + ", " + t(st.minimum.time) + " " + after_cycle_start(st)});
         }
         rows.push_back({"Steady state: average", v(st.average)});

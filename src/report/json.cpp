@@ -172,7 +172,7 @@ void write_exposure_json(std::ostream& out, const regimen::Regimen& r, const sim
         w.num("trough", c(iv.trough));
         w.num("minimum", c(iv.minimum.value)); w.num("minimum_time", iv.minimum.time);
         w.num("auc", c(iv.auc));
-        w.num("above_hours", iv.above_hours);
+        if (e.above) w.num("above_hours", iv.above_hours);  // absent without a threshold, like the days'
         if (e.window) w.num("window_hours", iv.window_hours);
         w.field("partial", iv.partial ? "true" : "false");
         w.close('}');
@@ -217,8 +217,10 @@ void write_exposure_json(std::ostream& out, const regimen::Regimen& r, const sim
             w.num("minimum", c(st.minimum.value)); w.num("minimum_time", st.minimum.time);
             w.num("average", c(st.average));
             w.num("auc", c(st.auc)); w.num("auc24", c(st.auc24));
-            w.num("above_hours", st.above_hours);
-            w.num("above_fraction", st.interval > 0 ? st.above_hours / st.interval : 0.0);
+            if (e.above) {
+                w.num("above_hours", st.above_hours);
+                w.num("above_fraction", st.interval > 0 ? st.above_hours / st.interval : 0.0);
+            }
             if (e.window) {
                 w.num("window_hours", st.window_hours);
                 w.num("above_high_hours", st.above_window_hours);
@@ -242,5 +244,12 @@ void write_exposure_json(std::ostream& out, const regimen::Regimen& r, const sim
     w.str("caution", kCaution);
     w.close('}');
 }
+
+}  // namespace plateau::report
+
+namespace plateau::report {
+
+std::string json_string(std::string_view s) { return quote(s); }
+std::string json_number(double v) { return number(v); }
 
 }  // namespace plateau::report

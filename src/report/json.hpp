@@ -3,6 +3,8 @@
 #pragma once
 
 #include <ostream>
+#include <string>
+#include <string_view>
 
 #include "metrics/exposure.hpp"
 #include "regimen/regimen.hpp"
@@ -17,5 +19,9 @@ struct JsonContext {
 // One JSON object for one regimen.
 void write_exposure_json(std::ostream& out, const regimen::Regimen& r, const sim::Simulation& s,
                          const metrics::Exposure& e, const JsonContext& ctx, int indent = 0);
+
+// A JSON string literal (quoted, escaped) and a JSON number (%.12g; null when not finite), for other writers.
+std::string json_string(std::string_view s);
+std::string json_number(double v);
 
 }  // namespace plateau::report

@@ -84,6 +84,36 @@ std::optional<double> common_period(const regimen::Regimen& r, const std::vector
     return static_cast<double>(lcm) / 3.6e6;
 }
 
+bool same_dose(const Dose& a, const Dose& b) {
+    return a.route == b.route && a.amount == b.amount && a.duration == b.duration && same_instant(a.time, b.time);
+}
+
+// The pattern may repeat sooner than the least common multiple of its series' intervals: three daily clock times
+// 8 h apart are one dose every 8 h. The shortest shift that maps the cycle's doses onto themselves (a whole
+// fraction of the period) is the period.
+void shortest_period(Cycle& c) {
+    const std::size_t n = c.doses.size();
+    for (std::size_t j = 1; j < n; ++j) {
+        const double shift = c.doses[j].time - c.doses[0].time;
+        const double parts = std::round(c.period / shift);
+        if (!(shift > 0.0) || parts < 2.0 || !same_instant(parts * shift, c.period)) continue;
+        bool maps = true;
+        for (std::size_t i = 0; i < n && maps; ++i) {
+            Dose moved = c.doses[i];
+            moved.time = std::fmod(moved.time + shift, c.period);
+            if (same_instant(moved.time, c.period)) moved.time = 0.0;
+            maps = std::any_of(c.doses.begin(), c.doses.end(), [&](const Dose& d) { return same_dose(d, moved); });
+        }
+        if (!maps) continue;
+        c.period = c.period / parts;
+        std::vector<Dose> kept;
+        for (const auto& d : c.doses)
+            if (before(d.time, c.period)) kept.push_back(d);
+        c.doses = std::move(kept);
+        return;
+    }
+}
+
 std::optional<Cycle> final_cycle(const regimen::Regimen& r, std::string& why) {
     double t_last = 0.0;
     bool any = false;
@@ -122,6 +152,7 @@ std::optional<Cycle> final_cycle(const regimen::Regimen& r, std::string& why) {
         }
     }
     std::stable_sort(c.doses.begin(), c.doses.end(), [](const Dose& a, const Dose& b) { return a.time < b.time; });
+    shortest_period(c);
     for (const auto& d : c.doses)
         if (c.dose_offsets.empty() || before(c.dose_offsets.back(), d.time)) c.dose_offsets.push_back(d.time);
     return c;

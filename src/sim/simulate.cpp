@@ -46,9 +46,21 @@ void choose_storage(traj::Trajectory& tr, taylor::Stepper& stepper) {
     tr.set_compact(ns, std::move(a), std::move(affine), std::move(w), std::move(d));
 }
 
-// Amounts below this fraction of the largest dose are far below anything a report can show: the step control
-// stops following them and a compartment that falls below it is emptied (see DEVELOPERS.md, "Decayed states").
-constexpr double kDoseFloor = 1e-30;
+// States whose right-hand side is −k·x of themselves alone (k > 0, linear models only).
+std::vector<char> drain_only_states(const taylor::Expander& ex) {
+    const std::size_t ns = static_cast<std::size_t>(ex.n_states());
+    std::vector<char> out(ns, 0);
+    if (!ex.linear()) return out;
+    const auto a = ex.linear_matrix();
+    const auto c = ex.linear_offset();
+    for (std::size_t s = 0; s < ns; ++s) {
+        bool only = a[s * ns + s] < 0.0 && c[s] == 0.0;
+        for (std::size_t j = 0; j < ns && only; ++j)
+            if (j != s && a[s * ns + j] != 0.0) only = false;
+        out[s] = only ? 1 : 0;
+    }
+    return out;
+}
 
 double dose_scale(const std::vector<Event>& events) {
     double big = 0.0;
@@ -77,7 +89,8 @@ Simulation integrate_events(const model::Model& m, taylor::Stepper& stepper, con
     sim.budget = budget;
     double scale = dose_scale(events);
     for (double v : x0) scale = std::max(scale, std::abs(v));
-    const double floor = kDoseFloor * scale;
+    const double floor = opt.empty_decayed ? opt.dose_floor * scale : 0.0;
+    const std::vector<char> drain_only = drain_only_states(stepper.expander());
     const double saved_floor = stepper.floor();
     stepper.set_floor(floor);
     struct Restore {  // the stepper is the caller's: leave its floor as it was
@@ -134,9 +147,17 @@ Simulation integrate_events(const model::Model& m, taylor::Stepper& stepper, con
             // amount (it changes no other amount by more than that rounding), is set to zero. Otherwise an
             // emptied fast compartment (a gut after absorption) is followed down to 1e-300 mg, or hovers at
             // round-off where only the explicit method's stability keeps its steps short.
-            const double empty_below = std::max(floor, 0x1p-53 * largest);
-            for (std::size_t c = 0; c < nc; ++c)
-                if (std::abs(x[c]) < empty_below) x[c] = 0.0;
+            // A compartment that only drains (x' = −k·x, nothing flowing in, no input running) cannot grow: when
+            // its amount grows over a step the step is beyond the method's stability for it, its content is
+            // below the error the step allows, and the exact solution tends to zero: it is set to zero, and the
+            // steps are again set by accuracy (an emptied absorption compartment, ka·h past the stability limit).
+            if (opt.empty_decayed) {
+                const double empty_below = std::max(floor, 0x1p-53 * largest);
+                for (std::size_t c = 0; c < nc; ++c)
+                    if (std::abs(x[c]) < empty_below ||
+                        (drain_only[c] && u[c] == 0.0 && std::abs(x[c]) > std::abs(coeffs[c * stride])))
+                        x[c] = 0.0;
+            }
             t = lands ? stop : t + h;
         }
     }

@@ -20,6 +20,11 @@ struct Options {
     int order = 0;               // > 0 forces the order
     long max_steps = 2'000'000;  // step budget over the whole horizon
     double max_bytes = 1024.0 * 1024.0 * 1024.0;  // memory budget of the kept step polynomials (1 GiB)
+    // Emptied compartments (simulate.cpp): an amount below dose_floor × the largest dose, below the rounding
+    // unit of the largest amount, or in a draining compartment that grows over a step is set to zero, and the
+    // step control's scale N is at least dose_floor × the largest dose. false follows every amount down.
+    bool empty_decayed = true;
+    double dose_floor = 1e-30;
 };
 
 // The step budget of a simulation: max_steps, lowered so that the kept polynomials fit in max_bytes.

@@ -91,8 +91,12 @@ PeriodicSolution solve_cycle(const model::Model& m, std::span<const double> para
         for (std::size_t i = 0; i < n; ++i) fx[i] -= xs[i];
         return inf_norm(fx);
     };
-    // Converged: what one cycle changes is round-off against the dose and the amounts.
-    auto converged = [&](double r, const std::vector<double>& xs) { return r <= 1e-9 * dosed + 1e-10 * inf_norm(xs); };
+    // Converged: what one cycle changes is round-off against the dose and the amounts (the solve's tolerance
+    // of the amounts), and in any case a millionth of the dose: near saturation the amounts can be huge while
+    // each cycle still adds a fixed excess, which is no steady state at all.
+    auto converged = [&](double r, const std::vector<double>& xs) {
+        return r <= 1e-9 * dosed + 1e-12 * inf_norm(xs) && r <= 1e-6 * dosed;
+    };
     std::vector<double> f;
     double r = residual(x, f);
     const int max_iter = 60;

@@ -36,6 +36,8 @@ public:
     bool linear() const { return linear_; }
     // A (n_states × n_states, row-major) of the linear executor; meaningful when linear().
     std::span<const double> linear_matrix() const { return a_; }
+    // c of the linear executor (the constant part of the right-hand sides).
+    std::span<const double> linear_offset() const { return c_; }
     // True when output j is affine in the states with constant coefficients: y = W_j·x + d_j.
     bool output_affine(int j) const { return out_affine_[static_cast<std::size_t>(j)] != 0; }
     // Row j of W (n_states values) and d_j; meaningful when output_affine(j).

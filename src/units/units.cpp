@@ -8,8 +8,10 @@
 #include <string>
 #include <string_view>
 #include <system_error>
+#include <vector>
 
 #include "core/diagnostic.hpp"
+#include "core/suggest.hpp"
 
 namespace plateau::units {
 namespace {
@@ -25,18 +27,27 @@ struct NamedUnit {
     Dim dim;
 };
 
-// Factors into mg, L and h.
+// Factors into mg, L and h. Time also under the spelled-out names people type ("2 hours", "30 mins").
 constexpr NamedUnit kUnits[] = {
-    {"ng", 1e-6, kMass},         {"ug", 1e-3, kMass},        {"\xC2\xB5g", 1e-3, kMass},
-    {"\xCE\xBCg", 1e-3, kMass},  {"mcg", 1e-3, kMass},       {"mg", 1.0, kMass},
-    {"g", 1e3, kMass},           {"kg", 1e6, kMass},         {"mL", 1e-3, kVolume},
-    {"ml", 1e-3, kVolume},       {"dL", 0.1, kVolume},       {"dl", 0.1, kVolume},
-    {"L", 1.0, kVolume},         {"l", 1.0, kVolume},        {"s", 1.0 / 3600.0, kTime},
-    {"sec", 1.0 / 3600.0, kTime}, {"min", 1.0 / 60.0, kTime}, {"h", 1.0, kTime},
-    {"hr", 1.0, kTime},          {"d", 24.0, kTime},         {"day", 24.0, kTime},
-    {"days", 24.0, kTime},       {"wk", 168.0, kTime},       {"week", 168.0, kTime},
-    {"%", 0.01, kNone},
+    {"ng", 1e-6, kMass},          {"ug", 1e-3, kMass},           {"\xC2\xB5g", 1e-3, kMass},
+    {"\xCE\xBCg", 1e-3, kMass},   {"mcg", 1e-3, kMass},          {"mg", 1.0, kMass},
+    {"g", 1e3, kMass},            {"kg", 1e6, kMass},            {"mL", 1e-3, kVolume},
+    {"ml", 1e-3, kVolume},        {"dL", 0.1, kVolume},          {"dl", 0.1, kVolume},
+    {"L", 1.0, kVolume},          {"l", 1.0, kVolume},           {"s", 1.0 / 3600.0, kTime},
+    {"sec", 1.0 / 3600.0, kTime}, {"min", 1.0 / 60.0, kTime},    {"mins", 1.0 / 60.0, kTime},
+    {"minute", 1.0 / 60.0, kTime}, {"minutes", 1.0 / 60.0, kTime}, {"h", 1.0, kTime},
+    {"hr", 1.0, kTime},           {"hrs", 1.0, kTime},           {"hour", 1.0, kTime},
+    {"hours", 1.0, kTime},        {"d", 24.0, kTime},            {"day", 24.0, kTime},
+    {"days", 24.0, kTime},        {"wk", 168.0, kTime},          {"week", 168.0, kTime},
+    {"weeks", 168.0, kTime},      {"%", 0.01, kNone},
 };
+
+// The unit names, for "did you mean" suggestions.
+std::vector<std::string> unit_names() {
+    std::vector<std::string> out;
+    for (const NamedUnit& nu : kUnits) out.emplace_back(nu.name);
+    return out;
+}
 
 bool is_letter(char c) { return (c >= 'a' && c <= 'z') || (c >= 'A' && c <= 'Z'); }
 bool is_digit(char c) { return c >= '0' && c <= '9'; }
@@ -205,7 +216,8 @@ private:
                     return Unit{nu.factor, nu.dim};
                 }
             }
-            fail("unknown unit " + quoted(name) + " in " + quoted(text_), pos_, name.size(), kUnitHint);
+            fail("unknown unit " + quoted(name) + " in " + quoted(text_) + did_you_mean(name, unit_names()), pos_,
+                 name.size(), kUnitHint);
         }
         const std::string_view tok = token();
         fail("expected a unit, got " + quoted(tok) + " in " + quoted(text_), pos_, tok.size(), kUnitHint);

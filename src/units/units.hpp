@@ -59,7 +59,8 @@ struct Quantity {
 
 // Parses a unit expression: products '*', quotients '/', integer powers '^' (e.g. "h^-1", "L^2"),
 // a leading "1/" ("1/h"), '%' (0.01, dimensionless) and the empty string (dimensionless).
-// Mass: ng ug µg mcg mg g kg. Volume: mL dL L (also l, ml, dl). Time: s min h d day wk (also hr, sec).
+// Mass: ng ug µg mcg mg g kg. Volume: mL dL L (also l, ml, dl). Time: s min h d wk, also sec, mins, minute(s),
+// hr(s), hour(s), day(s), week(s).
 // Throws plateau::TextError (offset within `text`) naming what was given and what is accepted.
 Unit parse_unit(std::string_view text);
 

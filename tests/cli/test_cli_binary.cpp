@@ -121,3 +121,29 @@ TEST_CASE("cli: the binary prints help with examples and exit codes, and its ver
     CHECK(v.code == 0);
     CHECK(v.out == std::string("plateau ") + plateau::cli::kVersion + "\n");
 }
+
+TEST_CASE("cli: the binary says plainly when an option is given twice or misspelt", "[cli]") {
+    Run r = run_binary("run bolus-single.toml --json a.json --json b.json");
+    CHECK(r.code == 1);
+    CHECK(r.err == "error: --json given twice; give it once\n(run 'plateau run --help' for usage)\n");
+    CHECK_FALSE(std::filesystem::exists(data_path("a.json")));
+
+    r = run_binary("compare bolus-single.toml bolus-q6h.toml --tol 1e-3 --tol 1e-4 --tol 1e-5");
+    CHECK(r.code == 1);
+    CHECK(r.err == "error: --tol given 3 times; give it once\n(run 'plateau compare --help' for usage)\n");
+
+    r = run_binary("run bolus-single.toml --jsn out.json");
+    CHECK(r.code == 1);
+    CHECK(r.err == "error: unknown option '--jsn' for 'run'; did you mean '--json'?\n"
+                   "(run 'plateau run --help' for usage)\n");
+
+    r = run_binary("run bolus-single.toml bolus-q6h.toml");
+    CHECK(r.code == 1);
+    CHECK(r.err == "error: unexpected argument 'bolus-q6h.toml' ('run' takes one regimen file)\n"
+                   "(run 'plateau run --help' for usage)\n");
+
+    r = run_binary("rnu bolus-single.toml");
+    CHECK(r.code == 1);
+    CHECK(r.err == "error: unknown command 'rnu'; expected one of: run, compare, check, models, dose; did you mean 'run'?\n"
+                   "(run 'plateau --help' for usage)\n");
+}

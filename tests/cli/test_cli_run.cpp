@@ -43,7 +43,8 @@ TEST_CASE("cli: run prints the summary of a single IV bolus", "[cli]") {
     REQUIRE(r.code == cli::kExitOk);
     CHECK(r.err.empty());
     CHECK(contains(r.out, "Regimen   bolus-single"));
-    CHECK(contains(r.out, "Model     one-compartment-iv: One compartment"));
+    CHECK(contains(r.out, "Model     one-compartment-iv (" + std::string(PLATEAU_SOURCE_DIR) +
+                              "/models/one-compartment-iv.toml): One compartment"));
     CHECK(contains(r.out, "1 dose (iv), 100 mg in total, at 0 h"));
     CHECK(contains(r.out, "Horizon   0 to 24 h"));
     CHECK(contains(r.out, "Taylor order 13"));  // p = ceil(-0.5 ln 1e-10 + 1) = 13, computed from the closed form

@@ -53,6 +53,9 @@ const Case kCatalogue[] = {
     {"model-lag-not-time.toml", false, 1,
      "model-lag-not-time.toml:23:47: error: the lag of route 'oral' must be a time, but it is a rate constant (1/time)",
      "a time: a parameter like \"tlag\" or a duration like \"30 min\""},
+    {"model-id-after-table.toml", false, 1,
+     "model-id-after-table.toml:5:1: error: 'id' is inside the [parameters] table that starts on line 4: in TOML, every key after a [header] line belongs to that table",
+     "the line id = \"...\" at the top of the file, before the first [header]"},
     {"model-malformed.toml", false, 1,
      "model-malformed.toml:6:25: error: invalid TOML: error while parsing inline table: expected key or closing '}', saw '\\n'",
      ""},
@@ -77,6 +80,12 @@ const Case kCatalogue[] = {
     {"model-output-unit-mismatch.toml", false, 1,
      "model-output-unit-mismatch.toml:20:18: error: output 'conc' is an amount (mass), but its unit 'mg/L' is a concentration (mass/volume)",
      "an expression that is a concentration (mass/volume), or a unit that matches it"},
+    {"model-output-parameter-wrong-unit.toml", false, 1,
+     "model-output-parameter-wrong-unit.toml:20:18: error: output 'conc' is an input rate (mass/time), but its unit 'mg/L' is a concentration (mass/volume)",
+     "an expression that is a concentration (mass/volume), or a unit that matches it"},
+    {"model-parameter-wrong-unit.toml", false, 1,
+     "model-parameter-wrong-unit.toml:17:12: error: cannot subtract mg^2/L from mg/h in 'ka*gut - cl/v*central'",
+     "both sides in the same unit"},
     {"model-rate-cannot-add.toml", false, 1,
      "model-rate-cannot-add.toml:17:12: error: cannot subtract mg*L/h from mg/h in 'ka*gut - cl*central'",
      "both sides in the same unit"},
@@ -98,20 +107,27 @@ const Case kCatalogue[] = {
     {"model-unknown-identifier.toml", false, 1,
      "model-unknown-identifier.toml:17:21: error: unknown identifier 'kel'",
      "one of: ka, cl, v, f, tlag, gut, central, t"},
+    {"model-unknown-identifier-suggested.toml", false, 1,
+     "model-unknown-identifier-suggested.toml:12:16: error: unknown identifier 'vv'; did you mean 'v'?",
+     "one of: cl, v, central, t"},
     {"model-unknown-key-output.toml", false, 1,
-     "model-unknown-key-output.toml:20:30: error: unknown key 'units' in output 'conc'",
+     "model-unknown-key-output.toml:20:30: error: unknown key 'units' in output 'conc'; did you mean 'unit'?",
      "one of: expr, unit, about"},
     {"model-unknown-key-parameter.toml", false, 1,
-     "model-unknown-key-parameter.toml:5:29: error: unknown key 'abut' in parameter 'ka'",
+     "model-unknown-key-parameter.toml:5:29: error: unknown key 'abut' in parameter 'ka'; did you mean 'about'?",
      "one of: value, about"},
     {"model-unknown-key-route.toml", false, 1,
-     "model-unknown-key-route.toml:23:24: error: unknown key 'fractoin' in route 'oral'",
+     "model-unknown-key-route.toml:23:24: error: unknown key 'fractoin' in route 'oral'; did you mean 'fraction'?",
      "one of: into, fraction, lag"},
     {"model-unknown-key-top.toml", false, 1,
-     "model-unknown-key-top.toml:3:1: error: unknown key 'sumary' in a model file",
-     "one of: id, summary, parameters, compartments, rates, outputs, routes"},
+     "model-unknown-key-top.toml:3:1: error: unknown key 'sumary' in a model file; did you mean 'summary'?",
+     "one of: id, summary, parameters, covariates, derived, compartments, rates, outputs, routes, variability, "
+     "correlation"},
     {"model-unknown-unit.toml", false, 1,
      "model-unknown-unit.toml:7:22: error: unknown unit 'litres' in '40 litres'",
+     "a unit such as mg, L, h, mg/L, L/h, 1/h"},
+    {"model-unknown-unit-suggested.toml", false, 1,
+     "model-unknown-unit-suggested.toml:6:23: error: unknown unit 'hh' in '5 L/hh'; did you mean 'h'?",
      "a unit such as mg, L, h, mg/L, L/h, 1/h"},
     {"model-wrong-type-id.toml", false, 1,
      "model-wrong-type-id.toml:2:6: error: 'id' must be a string, not an integer",
@@ -122,9 +138,18 @@ const Case kCatalogue[] = {
     {"regimen-amount-number.toml", true, 1,
      "regimen-amount-number.toml:7:10: error: 'amount' must be a string, not an integer",
      "a string with a unit, like \"250 mg\""},
+    {"regimen-amount-per-weight.toml", true, 1,
+     "regimen-amount-per-weight.toml:7:15: error: '3 mg/kg' is a dose per body weight or surface area, which is not supported yet (it will come with patient covariates)",
+     "the amount for this patient, like \"250 mg\""},
     {"regimen-amount-time.toml", true, 1,
      "regimen-amount-time.toml:7:15: error: expected an amount (mass), got '500 h' (time)",
      "an amount (mass)"},
+    {"regimen-clock-bad-time.toml", true, 1,
+     "regimen-clock-bad-time.toml:9:7: error: 'at': not a time of day (00:00 to 23:59) in '25:30'",
+     "a clock time like \"14:00\" (24-hour, HH:MM), or \"day 2 14:00\""},
+    {"regimen-clock-without-start.toml", true, 1,
+     "regimen-clock-without-start.toml:8:7: error: 'at' is a clock time, but the file does not say the clock time at t = 0",
+     "start_clock = \"08:00\" at the top of the file (the clock time at t = 0), or a time since the start like \"6 h\""},
     {"regimen-count-and-until.toml", true, 1,
      "regimen-count-and-until.toml:10:10: error: 'count' and 'until' cannot both be given",
      "one of them: count = <number of doses> or until = \"<time>\""},
@@ -152,6 +177,15 @@ const Case kCatalogue[] = {
     {"regimen-inf-at.toml", true, 1,
      "regimen-inf-at.toml:10:7: error: 'inf' is not a finite number",
      "a finite number, e.g. '250 mg'"},
+    {"regimen-late-too-late.toml", true, 1,
+     "regimen-late-too-late.toml:10:27: error: 'by' must be more than 0 and less than the time to the next dose (8 h)",
+     "a delay like \"2 h\""},
+    {"regimen-missed-no-such-time.toml", true, 1,
+     "regimen-missed-no-such-time.toml:11:12: error: 'missed': this [[doses]] entry has no dose at day 2 14:00",
+     "a dose number from 1 to 6, or a dose time like \"day 3 22:00\""},
+    {"regimen-missed-out-of-range.toml", true, 1,
+     "regimen-missed-out-of-range.toml:10:11: error: 'missed': this [[doses]] entry has no dose 4",
+     "a dose number from 1 to 3"},
     {"regimen-missing-model-file.toml", true, 1,
      "regimen-missing-model-file.toml:3:10: error: cannot find the model file '../models/none.toml'",
      "a model file at <tests>/diagnostics/models/none.toml, <tests>/data/models/none.toml"},
@@ -161,6 +195,9 @@ const Case kCatalogue[] = {
     {"regimen-negative-amount.toml", true, 1,
      "regimen-negative-amount.toml:7:11: error: the amount must be more than 0, got '-500 mg'",
      "an amount above 0, like \"250 mg\""},
+    {"regimen-model-after-table.toml", true, 1,
+     "regimen-model-after-table.toml:6:1: error: 'model' is inside the [parameters] table that starts on line 4: in TOML, every key after a [header] line belongs to that table",
+     "the line model = \"...\" at the top of the file, before the first [header]"},
     {"regimen-no-doses.toml", true, 1,
      "regimen-no-doses.toml:1:1: error: missing key 'doses' in the regimen file",
      "at least one [[doses]] section with route and amount, like route = \"iv\", amount = \"500 mg\""},
@@ -179,35 +216,44 @@ const Case kCatalogue[] = {
     {"regimen-override-wrong-dimension.toml", true, 1,
      "regimen-override-wrong-dimension.toml:6:9: error: expected a clearance (volume/time), got '5 L' (volume)",
      "a clearance (volume/time)"},
+    {"regimen-rate-per-area.toml", true, 1,
+     "regimen-rate-per-area.toml:8:15: error: '100 mg/m^2/h' is a dose per body weight or surface area, which is not supported yet (it will come with patient covariates)",
+     "the rate for this patient, like \"2 g/h\""},
     {"regimen-several.toml", true, 6,
      "regimen-several.toml:6:9: error: expected a clearance (volume/time), got '5 L' (volume)",
      "a clearance (volume/time)"},
     {"regimen-step-too-small.toml", true, 1,
      "regimen-step-too-small.toml:17:9: error: the output grid would have 1.728e+07 points",
      "at most 2000000 points: a step of at least 2.4e-05 h"},
+    {"regimen-times-with-every.toml", true, 1,
+     "regimen-times-with-every.toml:11:1: error: 'every' cannot be given with 'times'",
+     "times = [...] with days = <number of days> (the times repeat every day from day 1)"},
+    {"regimen-times-without-days.toml", true, 1,
+     "regimen-times-without-days.toml:6:1: error: missing key 'days' in [[doses]] with 'times'",
+     "days = <whole number of days from 1 to 100000>"},
     {"regimen-total-too-many.toml", true, 1,
      "regimen-total-too-many.toml:17:1: error: too many doses: 120003 in [[doses]] entries 1 to 3",
      "at most 100000 doses in all [[doses]] entries"},
     {"regimen-unknown-key-doses.toml", true, 1,
-     "regimen-unknown-key-doses.toml:8:1: error: unknown key 'evry' in [[doses]]",
+     "regimen-unknown-key-doses.toml:8:1: error: unknown key 'evry' in [[doses]]; did you mean 'every'?",
      "one of: route, amount, at, every, count, until, over, rate, times, days, missed, late, doubled"},
     {"regimen-unknown-key-horizon.toml", true, 1,
-     "regimen-unknown-key-horizon.toml:16:1: error: unknown key 'unitl' in [horizon]",
+     "regimen-unknown-key-horizon.toml:16:1: error: unknown key 'unitl' in [horizon]; did you mean 'until'?",
      "one of: until, step"},
     {"regimen-unknown-key-targets.toml", true, 1,
-     "regimen-unknown-key-targets.toml:13:1: error: unknown key 'abov' in [targets]",
+     "regimen-unknown-key-targets.toml:13:1: error: unknown key 'abov' in [targets]; did you mean 'above'?",
      "one of: output, above, above_for, window, auc24"},
     {"regimen-unknown-key-top.toml", true, 1,
-     "regimen-unknown-key-top.toml:4:1: error: unknown key 'abuot' in a regimen file",
-     "one of: id, model, about, start_clock, parameters, doses, targets, horizon"},
+     "regimen-unknown-key-top.toml:4:1: error: unknown key 'abuot' in a regimen file; did you mean 'about'?",
+     "one of: id, model, about, start_clock, parameters, patient, doses, targets, horizon"},
     {"regimen-unknown-model.toml", true, 1,
-     "regimen-unknown-model.toml:3:10: error: unknown model 'simple-orl'",
+     "regimen-unknown-model.toml:3:10: error: unknown model 'simple-orl'; did you mean 'simple-oral'?",
      "one of: simple-oral, two-comp-iv; or a path to a .toml file relative to this regimen"},
     {"regimen-unknown-output.toml", true, 1,
-     "regimen-unknown-output.toml:12:11: error: unknown output 'cnc' in model 'simple-oral'",
+     "regimen-unknown-output.toml:12:11: error: unknown output 'cnc' in model 'simple-oral'; did you mean 'conc'?",
      "one of: conc, conc_ng"},
     {"regimen-unknown-route.toml", true, 1,
-     "regimen-unknown-route.toml:6:10: error: unknown route 'orla'",
+     "regimen-unknown-route.toml:6:10: error: unknown route 'orla'; did you mean 'oral'?",
      "one of: oral, iv"},
     {"regimen-until-too-many.toml", true, 1,
      "regimen-until-too-many.toml:9:10: error: 'until' gives 144000 doses in this [[doses]] entry",
@@ -218,6 +264,21 @@ const Case kCatalogue[] = {
     {"regimen-zero-amount.toml", true, 1,
      "regimen-zero-amount.toml:7:11: error: the amount must be more than 0, got '0 mg'",
      "an amount above 0, like \"250 mg\""},
+};
+
+// Diagnostics that carry a note at another place: the file, and the note's first line.
+struct NoteCase {
+    const char* file;
+    const char* note;
+};
+
+const NoteCase kNotes[] = {
+    {"model-parameter-wrong-unit.toml",
+     "model-parameter-wrong-unit.toml:6:19: note: 'cl' is an amount (mass) here; this rate needs a clearance (volume/time)"},
+    {"model-output-parameter-wrong-unit.toml",
+     "model-output-parameter-wrong-unit.toml:8:19: note: 'vc' is a duration (time) here; output 'conc' (mg/L) needs a volume"},
+    {"model-rate-cannot-add.toml",
+     "model-rate-cannot-add.toml:6:19: note: 'cl' is a clearance (volume/time) here; this rate needs a rate constant (1/time)"},
 };
 
 std::string replace_all(std::string s, const std::string& from, const std::string& to) {
@@ -267,4 +328,24 @@ TEST_CASE("input: every bad file in the catalogue gives its exact first diagnost
             CHECK(d.pos.col > 0);
         }
     }
+}
+
+TEST_CASE("input: a wrong dimension gets a note at the parameter that would fix it", "[input][diagnostics]") {
+    for (const NoteCase& c : kNotes) {
+        INFO("case " << c.file);
+        std::vector<Diagnostic> ds = diagnose(kCases + c.file, false);
+        REQUIRE(ds.size() == 1);
+        REQUIRE(ds.front().notes.size() == 1);
+        // The note is printed after the error, with its own location, source line and caret.
+        const std::string text = replace_all(plateau::format_diagnostics(ds), kCases, "");
+        const std::size_t at = text.find(c.note);
+        CHECK(at != std::string::npos);
+        const std::size_t caret = text.find('^', at);
+        REQUIRE(caret != std::string::npos);
+        CHECK(text.compare(caret - 2, 2, "  ") == 0);  // under the value, on the line after the note's source line
+    }
+    // "-ka" where "-ka*gut" was meant: ka has the right unit in the other rate, so it gets no note.
+    std::vector<Diagnostic> ds = diagnose(kCases + "model-rate-wrong-dimension.toml", false);
+    REQUIRE(ds.size() == 1);
+    CHECK(ds.front().notes.empty());
 }

@@ -67,7 +67,7 @@ TEST_CASE("input: a complete diagnostic shows file, line, column, the line, a ca
     auto ds = regimen_errors(kCases + "regimen-unknown-key-doses.toml");
     REQUIRE(ds.size() == 1);
     CHECK(plateau::format_diagnostics(ds) ==
-          kCases + "regimen-unknown-key-doses.toml:8:1: error: unknown key 'evry' in [[doses]]\n"
+          kCases + "regimen-unknown-key-doses.toml:8:1: error: unknown key 'evry' in [[doses]]; did you mean 'every'?\n"
                    "  evry = \"8 h\"\n"
                    "  ^~~~\n"
                    "  expected: one of: route, amount, at, every, count, until, over, rate, times, days, missed, late, doubled\n");
@@ -88,7 +88,7 @@ TEST_CASE("input: all the problems of a model file are reported at once, in file
                              "6:20: unknown unit 'litres' in '40 litres'",
                              "10:1: no rate for compartment 'central'",
                              "14:1: rate for unknown compartment 'periph'",
-                             "17:26: unknown identifier 'V'",
+                             "17:26: unknown identifier 'V'; did you mean 'v'?",
                          });
     // The unknown identifier lists every parameter, also the one whose value was wrong.
     REQUIRE(ds.size() == 4);
@@ -99,10 +99,10 @@ TEST_CASE("input: all the problems of a regimen file are reported at once, in fi
     auto ds = regimen_errors(kCases + "regimen-several.toml");
     CHECK(located(ds) == std::vector<std::string>{
                              "6:9: expected a clearance (volume/time), got '5 L' (volume)",
-                             "9:10: unknown route 'orla'",
+                             "9:10: unknown route 'orla'; did you mean 'oral'?",
                              "12:9: 'count' is 0, outside 1 to 100000",
                              "13:9: 'over' must be more than 0, got '-1 h'",
-                             "16:11: unknown output 'cnc' in model 'simple-oral'",
+                             "16:11: unknown output 'cnc' in model 'simple-oral'; did you mean 'conc'?",
                              "19:12: unknown unit 'years' in '2 years'",
                          });
 }
@@ -206,7 +206,7 @@ TEST_CASE("input: a regimen whose model has errors reports the model's problems 
     auto ds = regimen_errors(reg);
     REQUIRE(ds.size() == 3);
     CHECK(ds[0].pos.file == model);
-    CHECK(ds[0].message == "route 'iv' goes into unknown compartment 'c2'");
+    CHECK(ds[0].message == "route 'iv' goes into unknown compartment 'c2'; did you mean 'c'?");
     CHECK(ds[1].pos.file == reg);
     CHECK(ds[1].message == "the model 'bad-model.toml' (" + model + ") has errors");
     // The regimen's own problems that do not need the model are still found.

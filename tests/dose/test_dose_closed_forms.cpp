@@ -18,11 +18,12 @@ const double kCl = kK * kV;
 
 std::string bolus_regimen(const test::TempDir& d, const std::string& targets, double cl = kCl, double v = kV,
                           double over = 0.0) {
-    return d.write("template.toml",
-                   "id = \"template\"\nmodel = \"one-compartment-iv\"\n[parameters]\ncl = \"" + g17(cl) +
-                       " L/h\"\nv = \"" + g17(v) + " L\"\n[[doses]]\nroute = \"iv\"\namount = \"100 mg\"\nevery = \"6 h\"\n"
-                       "count = 12\n" + (over > 0 ? "over = \"" + g17(over) + " h\"\n" : std::string()) +
-                       "[targets]\noutput = \"conc\"\n" + targets);
+    return d.write("template.toml", "id = \"template\"\nmodel = \"one-compartment-iv\"\n[parameters]\ncl = \"" +
+                                        g17(cl) + " L/h\"\nv = \"" + g17(v) +
+                                        " L\"\n[[doses]]\nroute = \"iv\"\namount = \"100 mg\"\nevery = \"6 h\"\n"
+                                        "count = 12\n" +
+                                        (over > 0 ? "over = \"" + g17(over) + " h\"\n" : std::string()) +
+                                        "[targets]\noutput = \"conc\"\n" + targets);
 }
 
 }  // namespace
@@ -87,8 +88,8 @@ TEST_CASE("dose: short infusions against the infusion steady-state formulas", "[
     // τ = 8 h, t' = 0.5 h: C_min = k0(1 − e^{−kt'})e^{−k(τ−t')} / (CL(1 − e^{−kτ})) with k0 = D/t' (Sawchuk &
     // Zaske 1976), solved for D (computed from the closed form).
     const double k = 4.0 / 50.0;
-    const double expected = 12.9191614315 * 4.0 * 0.5 * (1.0 - std::exp(-k * 8.0)) /
-                            ((1.0 - std::exp(-k * 0.5)) * std::exp(-k * 7.5));
+    const double expected =
+        12.9191614315 * 4.0 * 0.5 * (1.0 - std::exp(-k * 8.0)) / ((1.0 - std::exp(-k * 0.5)) * std::exp(-k * 7.5));
     CHECK(s.found[1].exact == Approx(expected).epsilon(1e-9));
     CHECK(s.found[1].outcome == dose::Outcome::Meets);
 }
@@ -122,4 +123,26 @@ TEST_CASE("dose: bolus every tau, the loading dose that starts at the steady-sta
     CHECK(f.loading->exact == Approx(f.dose / (1.0 - std::exp(-kK * 6.0))).epsilon(1e-9));
     CHECK(f.loading->first_value == Approx(f.loading->steady_value).epsilon(1e-9));
     CHECK(f.loading->steady_value == Approx(5.0).epsilon(1e-9));  // the trough the search aimed at
+}
+
+TEST_CASE("dose: doses above a saturable elimination's maximum have no steady state, and the search goes below",
+          "[dose]") {
+    test::TempDir d("dose");
+    // Vmax = 20 mg/h (the built-in model's value): 186.52 mg every 6 h is 31 mg/h, more than can be eliminated,
+    // so the amounts keep rising (common practice, no source). Newton's method once called amounts pushed
+    // towards 1e12 mg a steady state here.
+    const std::string path =
+        d.write("mm.toml",
+                "id = \"mm\"\nmodel = \"one-compartment-mm-iv\"\n[[doses]]\nroute = \"iv\"\namount = \"186.52 mg\"\n"
+                "every = \"6 h\"\ncount = 10\nover = \"1 h\"\n[targets]\noutput = \"conc\"\nabove = \"8 mg/L\"\n");
+    const report::Candidate c = dosetest::pipeline()(cli::load(path, {}, {}));
+    REQUIRE(c.exposure.steady);
+    CHECK_FALSE(c.exposure.steady->found);
+    CHECK_THAT(c.exposure.steady->why_not, Catch::Contains("keep rising"));
+    const auto s = dosetest::search(path, {}, {{6.0, 1.0}});
+    const auto& f = s.found.at(0);
+    CHECK(f.outcome == dose::Outcome::Meets);
+    CHECK(f.message.empty());
+    CHECK(f.dose < 6.0 * 20.0);                                                // below Vmax·τ
+    CHECK(f.at->exposure.steady->minimum.value == Approx(8.0).epsilon(1e-9));  // the threshold it aimed at
 }

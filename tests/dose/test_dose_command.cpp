@@ -3,6 +3,7 @@
 #include <catch2/catch.hpp>
 
 #include <cmath>
+#include <filesystem>
 #include <fstream>
 #include <sstream>
 
@@ -29,7 +30,9 @@ std::string slurp(const std::string& path) {
     return std::string(std::istreambuf_iterator<char>(f), {});
 }
 
-std::string demo(const std::string& name) { return std::string(PLATEAU_SOURCE_DIR) + "/regimens/" + name; }
+std::string demo(const std::string& name) {
+    return std::string(PLATEAU_SOURCE_DIR) + "/regimens/" + name;
+}
 
 // A level that rises with the amount and then falls (a user model a dose search cannot trust).
 const char* kHumpModel = R"toml(id = "hump"
@@ -77,7 +80,8 @@ TEST_CASE("dose: an infeasible window says so with the figures at the best compr
     // form), so no dose keeps the whole range inside 4 .. 8 mg/L.
     const std::string path = d.write(
         "wide.toml",
-        "id = \"wide\"\nmodel = \"one-compartment-iv\"\n[parameters]\ncl = \"" + dosetest::g17(std::log(2.0) / 4.0 * 10.0) +
+        "id = \"wide\"\nmodel = \"one-compartment-iv\"\n[parameters]\ncl = \"" +
+            dosetest::g17(std::log(2.0) / 4.0 * 10.0) +
             " L/h\"\nv = \"10 L\"\n[[doses]]\nroute = \"iv\"\namount = \"100 mg\"\nevery = \"24 h\"\ncount = 5\n"
             "[targets]\noutput = \"conc\"\nwindow = [\"4 mg/L\", \"8 mg/L\"]\n");
     const auto s = dosetest::search(path, {}, {{24.0, 0.0}});
@@ -91,9 +95,12 @@ TEST_CASE("dose: an infeasible window says so with the figures at the best compr
 
     cli::DoseOptions o;
     o.regimen = path;
+    o.write = d.file("none.toml");
     const auto r = dose_cmd(o);
     CHECK(r.code == 0);
     CHECK_THAT(r.out, Catch::Contains("no dose fits"));
+    CHECK_THAT(r.out, Catch::Contains("not written to"));
+    CHECK_FALSE(std::filesystem::exists(o.write));
     CHECK_THAT(r.out, Catch::Contains("No candidate meets every target"));
     CHECK_THAT(r.out, Catch::StartsWith("CAUTION: "));
 }
@@ -102,8 +109,9 @@ TEST_CASE("dose: a user model whose level falls with the dose gives a plain mess
     test::TempDir d("dose");
     d.write("hump.toml", kHumpModel);
     const std::string path =
-        d.write("t.toml", "id = \"t\"\nmodel = \"hump.toml\"\n[[doses]]\nroute = \"iv\"\namount = \"1000 mg\"\n"
-                          "every = \"12 h\"\ncount = 6\n[targets]\nabove = \"1 mg/L\"\n");
+        d.write("t.toml",
+                "id = \"t\"\nmodel = \"hump.toml\"\n[[doses]]\nroute = \"iv\"\namount = \"1000 mg\"\n"
+                "every = \"12 h\"\ncount = 6\n[targets]\nabove = \"1 mg/L\"\n");
     const auto s = dosetest::search(path, {}, {{12.0, 0.0}});
     CHECK(s.found.at(0).outcome == dose::Outcome::NonMonotone);
     CHECK_THAT(s.found.at(0).message, Catch::Contains("the figure falls from"));
@@ -148,26 +156,42 @@ TEST_CASE("dose: the written regimen runs and compares unchanged and gives the r
 
     cli::CompareOptions co;
     co.regimens = {o.regimen, o.write};
+    co.report = d.file("both.html");
     const auto cmp = clitest::compare(co);
     CHECK(cmp.code == 0);
     CHECK(cmp.err.empty());
+    // The HTML report of the template against the found regimen names both.
+    const std::string html = slurp(co.report);
+    CHECK_THAT(html, Catch::Contains("zelmarin-q8h-4h-dose"));
+    CHECK_THAT(html, Catch::Contains("smallest daily dose meeting every target"));
+
+    // And `dose` reads it back as a template: the search finds the same maintenance dose again.
+    cli::DoseOptions again;
+    again.regimen = o.write;
+    again.round = "250mg";
+    again.json = d.file("again.json");
+    REQUIRE(dose_cmd(again).code == 0);
+    const auto aj = jsonmini::parse(slurp(again.json));
+    CHECK(jsonmini::number(aj, "candidates/0/dose_mg") == jsonmini::number(js, path + "/dose_mg"));
 }
 
 TEST_CASE("dose: a bad request exits 1 with a clear message", "[dose]") {
     test::TempDir d("dose");
     cli::DoseOptions o;
     SECTION("two repeating series") {
-        o.regimen = d.write("two.toml",
-                            "id = \"two\"\nmodel = \"one-compartment-iv\"\n[[doses]]\nroute = \"iv\"\namount = \"1 g\"\n"
-                            "every = \"8 h\"\ncount = 3\n[[doses]]\nroute = \"iv\"\namount = \"1 g\"\nat = \"24 h\"\n"
-                            "every = \"12 h\"\ncount = 3\n[targets]\nabove = \"1 mg/L\"\n");
+        o.regimen =
+            d.write("two.toml",
+                    "id = \"two\"\nmodel = \"one-compartment-iv\"\n[[doses]]\nroute = \"iv\"\namount = \"1 g\"\n"
+                    "every = \"8 h\"\ncount = 3\n[[doses]]\nroute = \"iv\"\namount = \"1 g\"\nat = \"24 h\"\n"
+                    "every = \"12 h\"\ncount = 3\n[targets]\nabove = \"1 mg/L\"\n");
         const auto r = dose_cmd(o);
         CHECK(r.code == 1);
         CHECK_THAT(r.err, Catch::Contains("two.toml:3:1: error: one of 2 repeating dose series"));
     }
     SECTION("no repeating series") {
-        o.regimen = d.write("single.toml", "id = \"single\"\nmodel = \"one-compartment-iv\"\n[[doses]]\nroute = \"iv\"\n"
-                                           "amount = \"1 g\"\n[targets]\nabove = \"1 mg/L\"\n");
+        o.regimen = d.write("single.toml",
+                            "id = \"single\"\nmodel = \"one-compartment-iv\"\n[[doses]]\nroute = \"iv\"\n"
+                            "amount = \"1 g\"\n[targets]\nabove = \"1 mg/L\"\n");
         const auto r = dose_cmd(o);
         CHECK(r.code == 1);
         CHECK_THAT(r.err, Catch::Contains("no repeating dose series to vary"));
@@ -200,4 +224,71 @@ TEST_CASE("dose: a bad request exits 1 with a clear message", "[dose]") {
         CHECK(r.code == 1);
         CHECK_THAT(r.err, Catch::Contains("is an input file"));
     }
+}
+
+TEST_CASE("dose: an exact AUC24 is rounded to the nearest step and the closest candidate is recommended", "[dose]") {
+    cli::DoseOptions o;
+    o.regimen = demo("zelmarin-q8h-4h.toml");
+    o.targets.auc24 = "400";  // one value: AUC24 = 400 exactly
+    o.intervals = "8h,6h";
+    o.round = "250mg";
+    o.json = "-";
+    const auto r = dose_cmd(o);
+    REQUIRE(r.code == 0);
+    const auto js = jsonmini::parse(r.out);  // JSON on standard output, the table on standard error
+    CHECK_THAT(r.err, Catch::Contains("Dose search"));
+    // CL = 8 L/h and fu = 0.8: AUC24 of the free level = 0.8 · daily dose / CL, so 4000 mg a day gives 400
+    // mg·h/L (computed from the closed form AUC = F·D/CL, reference identity 11).
+    const auto& c = jsonmini::at(js, "candidates");
+    REQUIRE(c.items.size() == 2);
+    CHECK(jsonmini::number(js, "recommended") == 0);
+    CHECK(jsonmini::number(js, "candidates/0/interval") == 6.0);  // 1000 mg every 6 h hits 400 exactly
+    CHECK(jsonmini::number(js, "candidates/0/dose_mg") == 1000.0);
+    CHECK(jsonmini::number(js, "candidates/0/steady_state/auc24") == Approx(400.0).epsilon(1e-9));
+    // Every 8 h: 1333.33 mg solved, 1250 mg the nearest 250-mg step (not 1500: nearest, not up).
+    CHECK(jsonmini::number(js, "candidates/1/solved_mg") == Approx(4000.0 / 3.0).epsilon(1e-9));
+    CHECK(jsonmini::number(js, "candidates/1/dose_mg") == 1250.0);
+    CHECK(jsonmini::at(js, "rule").s == "closest to the exact target, then smallest daily dose, meeting every target");
+}
+
+TEST_CASE("dose: a maintenance series of several clock times a day is refused", "[dose]") {
+    test::TempDir d("dose");
+    cli::DoseOptions o;
+    o.regimen = d.write("clock.toml",
+                        "id = \"clock\"\nmodel = \"one-compartment-iv\"\nstart_clock = \"08:00\"\n"
+                        "[[doses]]\nroute = \"iv\"\namount = \"1 g\"\n"
+                        "times = [\"08:00\", \"20:00\"]\ndays = 3\n[targets]\nabove = \"1 mg/L\"\n");
+    const auto r = dose_cmd(o);
+    CHECK(r.code == 1);
+    CHECK_THAT(r.err, Catch::Contains("clock.toml:4:1: error: the maintenance series gives several clock times"));
+}
+
+TEST_CASE("dose: the README excerpt is what the command prints", "[dose]") {
+    test::TempDir d("dose");
+    const std::string readme = slurp(std::string(PLATEAU_SOURCE_DIR) + "/README.md");
+    const std::size_t at = readme.find("Dose search — template zelmarin-q8h-4h");
+    REQUIRE(at != std::string::npos);
+    const std::size_t from = readme.rfind("```text\n", at) + 8;
+    const std::string excerpt = readme.substr(from, readme.find("```", from) - from);
+
+    cli::DoseOptions o;
+    o.regimen = demo("zelmarin-q8h-4h.toml");
+    o.intervals = "8h";
+    o.over = "4h";
+    o.targets.above = "4mg/L";
+    o.round = "250mg";
+    o.loading = true;
+    o.write = d.file("zelmarin-found.toml");
+    const auto r = dose_cmd(o);
+    REQUIRE(r.code == 0);
+    // Paths differ (absolute here, relative in the README) and so may the wrapping: compare words.
+    auto words = [](std::string s, const std::vector<std::string>& strip) {
+        for (const auto& p : strip)
+            for (std::size_t k; (k = s.find(p)) != std::string::npos;) s.erase(k, p.size());
+        std::string w;
+        std::istringstream in(s);
+        for (std::string x; in >> x;) w += x + ' ';
+        return w;
+    };
+    CHECK(words(r.out, {std::string(PLATEAU_SOURCE_DIR) + "/", d.path.string() + "/"}) == words(excerpt, {}));
 }

@@ -7,6 +7,7 @@
 #include <algorithm>
 #include <cmath>
 #include <filesystem>
+#include <fstream>
 #include <functional>
 #include <map>
 #include <string>
@@ -215,10 +216,48 @@ void check_zelmarin(const Example& ex) {
           std::string::npos);
 }
 
+// ---- zelmarin: a missed or late evening dose -------------------------------------------------------------
+
+void check_missed_dose(const Example& ex) {
+    REQUIRE(ex.regimens.size() == 3);
+    const auto& a = ex.candidate("zelmarin-as-prescribed");
+    const auto& b = ex.candidate("zelmarin-missed-evening");
+    const auto& c = ex.candidate("zelmarin-late-evening");
+    // The steady state belongs to the prescribed pattern: one missed or late dose does not change it.
+    for (const char* key : {"peak", "trough", "average", "auc24"}) {
+        INFO(key);
+        CHECK(ex.ss("zelmarin-missed-evening", key) == Approx(ex.ss("zelmarin-as-prescribed", key)).epsilon(1e-12));
+        CHECK(ex.ss("zelmarin-late-evening", key) == Approx(ex.ss("zelmarin-as-prescribed", key)).epsilon(1e-12));
+    }
+    // Day 2's 22:00 dose is 40 h after 06:00 on day 1.
+    CHECK(a.schedule.doses.size() == 12);
+    CHECK(b.schedule.doses.size() == 11);
+    CHECK(c.schedule.doses[5].time == Approx(43.0));
+    // Day 1 is the same; day 2 (06:00 to 06:00) loses time above the threshold, less when the dose comes late.
+    const auto& da = a.exposure.days, &db = b.exposure.days, &dc = c.exposure.days;
+    REQUIRE(da.size() == 4);
+    CHECK(db[0].above_hours == Approx(da[0].above_hours).epsilon(1e-12));
+    CHECK(db[1].above_hours < dc[1].above_hours);
+    CHECK(dc[1].above_hours < da[1].above_hours);
+    CHECK(da[1].above_hours - db[1].above_hours > 4.0);  // the missed dose costs hours, not minutes
+    // Linear model: the run without the dose differs from the full run by exactly that one dose given alone
+    // (superposition; common practice, no source).
+    TempDir tmp("example-missed-dose");
+    const std::string one = tmp.file("one-dose.toml");
+    std::ofstream(one) << "id = \"one-dose\"\nmodel = \"zelmarin\"\nstart_clock = \"06:00\"\n[parameters]\ncl = \"8 L/h\"\n"
+                          "[[doses]]\nroute = \"iv\"\namount = \"1 g\"\nat = \"day 2 22:00\"\nover = \"30 min\"\n"
+                          "[targets]\noutput = \"free\"\n[horizon]\nuntil = \"4 d\"\n";
+    const auto single = candidates({one});
+    CHECK(a.exposure.auc - b.exposure.auc == Approx(single.front().exposure.auc).epsilon(1e-9));
+    CHECK(ex.text.find("Time above threshold, worst day (h)") != std::string::npos);
+    CHECK(ex.text.find("12.73 d2") != std::string::npos);
+}
+
 const std::map<std::string, std::function<void(const Example&)>>& checks() {
     static const std::map<std::string, std::function<void(const Example&)>> m{
         {"korvatide-dose-step", check_korvatide},
         {"zelmarin-infusion-length", check_zelmarin},
+        {"zelmarin-missed-dose", check_missed_dose},
     };
     return m;
 }

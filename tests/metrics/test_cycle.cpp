@@ -234,3 +234,21 @@ count = 150
     CHECK_THAT(r.exposure.steady->trough, WithinRel(prev.trough, 1e-7));
     (void)last;
 }
+
+TEST_CASE("cycle: clock times 8 h apart are one dose every 8 h", "[metrics][cycle]") {
+    // The shortest period after which the pattern repeats, not the 24 h of the daily list (common practice, no
+    // source); 07:00, 15:00, 23:00 from t = 0 at 06:00 are offsets 1, 9 and 17 h.
+    const auto r = run_text("clock-q8.toml", std::string("id = \"clock-q8\"\nstart_clock = \"06:00\"\n") + kHead + R"(
+[[doses]]
+route = "iv"
+amount = "100 mg"
+times = ["07:00", "15:00", "23:00"]
+days = 5
+)");
+    REQUIRE(r.schedule.cycle);
+    CHECK(r.schedule.cycle->period == Approx(8.0));
+    CHECK(r.schedule.cycle->doses.size() == 1);
+    const std::vector<Series> ss{{100, 8, 1}};
+    CHECK_THAT(r.exposure.steady->trough, WithinRel(css(ss, 1.0, true), 1e-9));
+    CHECK(r.schedule.doses.front().time == Approx(1.0));
+}

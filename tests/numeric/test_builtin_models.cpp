@@ -46,7 +46,8 @@ const std::vector<std::string> kDocumentedIds{"one-compartment-iv",      "one-co
                                               "three-compartment-iv",    "one-compartment-mm-iv",
                                               "one-compartment-mm-oral", "one-compartment-linear-mm-iv",
                                               "transit-oral",            "zelmarin",
-                                              "korvatide"};
+                                              "korvatide",               "one-compartment-iv-renal",
+                                              "zelmarin-renal"};
 
 std::string num(double x) {
     char buf[40];

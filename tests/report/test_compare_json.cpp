@@ -84,7 +84,7 @@ TEST_CASE("report: comparison table cells are the JSON figures rounded as displa
     const json::Value all = compare_json(regimens, dir);
     const auto cs = candidates(regimens);
     const auto rows = report::comparison_rows(cs);
-    REQUIRE(rows.size() == 14);  // every row applies: all four repeat, have a threshold and a window
+    REQUIRE(rows.size() == 15);  // every row applies: all four repeat over 3 days, have a threshold and a window
 
     // What each row shows, taken from one regimen's JSON object, formatted as the table formats it.
     using Cell = std::string (*)(const json::Value&);
@@ -105,6 +105,15 @@ TEST_CASE("report: comparison table cells are the JSON figures rounded as displa
          [](const json::Value& j) { return report::num(json::number(j, "steady_state/auc24")); }},
         {"Time above threshold, day 1",
          [](const json::Value& j) { return report::num(json::number(j, "days/0/above_hours"), 4); }},
+        {"Time above threshold, worst day",
+         [](const json::Value& j) {
+             // The full day with the least time above (ties: the first).
+             const auto& days = json::at(j, "days").items;
+             std::size_t worst = 0;
+             for (std::size_t d = 0; d < days.size(); ++d)
+                 if (json::number(days[d], "above_hours") < json::number(days[worst], "above_hours")) worst = d;
+             return report::num(json::number(days[worst], "above_hours"), 4) + " d" + std::to_string(worst + 1);
+         }},
         {"Time above threshold, ss",
          [](const json::Value& j) { return report::percent(json::number(j, "steady_state/above_fraction")); }},
         {"First reaches threshold",

@@ -206,10 +206,11 @@ TEST_CASE("input: the default horizon follows the last dose", "[input]") {
     // A 36 h infusion outlasts the 24 h after its start.
     r = regimen_with(tmp, "[[doses]]\nroute = \"iv\"\namount = \"1 mg\"\nover = \"36 h\"\n");
     CHECK(r.horizon.until == Approx(36.0));
-    // Two entries: the later last dose counts (the series' last dose at 16 h, the single one at 30 h).
+    // Two entries: the later last dose counts (the series' last dose at 16 h, the single one at 30 h), delayed
+    // by its route's 30-min lag: 30 h + 0.5 h + 24 h.
     r = regimen_with(tmp, "[[doses]]\nroute = \"iv\"\namount = \"1 mg\"\nevery = \"8 h\"\ncount = 3\n"
                           "[[doses]]\nroute = \"oral\"\namount = \"1 mg\"\nat = \"30 h\"\n");
-    CHECK(r.horizon.until == Approx(54.0));
+    CHECK(r.horizon.until == Approx(54.5));
     // Targets default to the model's first output.
     CHECK(r.targets.output == "conc");
     CHECK(!r.targets.above.has_value());

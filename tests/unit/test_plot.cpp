@@ -332,3 +332,14 @@ TEST_CASE("plot: labels with quotes and markup characters are drawn as written",
     CHECK(svg.find("<text>it's \"Zelvamycin\" \\ x_1^2 @ {b} ~ µg/L</text>") != std::string::npos);
     CHECK(svg.find("-gnuplot_plot_2\"") != std::string::npos);  // the unlabelled curve is drawn
 }
+
+TEST_CASE("plot: the window band has a key entry even when the caller gives it no label", "[plot]") {
+    if (!need_gnuplot()) return;
+    Figure f = demo_figure();
+    f.band_label.clear();
+    const std::string svg = plot::render_svg(f);
+    // The default entry names the band's ends, as the threshold line's default names its level.
+    CHECK(svg.find("window 2\xE2\x80\x93" "12") != std::string::npos);
+    f.band_label = "window 2-12 mg/L";
+    CHECK(plot::render_svg(f).find("window 2-12 mg/L") != std::string::npos);
+}

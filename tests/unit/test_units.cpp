@@ -2,8 +2,10 @@
 
 #include <string>
 #include <string_view>
+#include <utility>
 
 #include "core/diagnostic.hpp"
+#include "core/suggest.hpp"
 #include "units/units.hpp"
 
 using namespace plateau::units;
@@ -225,23 +227,23 @@ TEST_CASE("units: canonical_unit", "[units]") {
 TEST_CASE("units: unknown units", "[units]") {
     const char* hint = "a unit such as mg, L, h, mg/L, L/h, 1/h";
     TextError e = quantity_error("4 mgg");
-    CHECK(std::string(e.what()) == "unknown unit 'mgg' in '4 mgg'");
+    CHECK(std::string(e.what()) == "unknown unit 'mgg' in '4 mgg'; did you mean 'mg'?");
     CHECK(e.offset() == 2);
     CHECK(e.length() == 3);
     CHECK(e.expected() == hint);
 
     e = quantity_error("4 mg/Lh");
-    CHECK(std::string(e.what()) == "unknown unit 'Lh' in '4 mg/Lh'");
+    CHECK(std::string(e.what()) == "unknown unit 'Lh' in '4 mg/Lh'; did you mean 'L'?");
     CHECK(e.offset() == 5);
     CHECK(e.length() == 2);
 
     e = quantity_error("4 \xC2\xB5gg");  // 'µgg': 4 bytes
-    CHECK(std::string(e.what()) == "unknown unit '\xC2\xB5gg' in '4 \xC2\xB5gg'");
+    CHECK(std::string(e.what()) == "unknown unit '\xC2\xB5gg' in '4 \xC2\xB5gg'; did you mean '\xC2\xB5g'?");
     CHECK(e.offset() == 2);
     CHECK(e.length() == 4);
 
     e = unit_error("MG");  // names are case-sensitive
-    CHECK(std::string(e.what()) == "unknown unit 'MG' in 'MG'");
+    CHECK(std::string(e.what()) == "unknown unit 'MG' in 'MG'; did you mean 'mg'?");
     CHECK(e.offset() == 0);
     CHECK(e.expected() == hint);
 
@@ -410,16 +412,16 @@ TEST_CASE("units: dimension checks", "[units]") {
 
     // Syntax errors come first, with their own message.
     e = dim_error("4 mgg", kConc);
-    CHECK(std::string(e.what()) == "unknown unit 'mgg' in '4 mgg'");
+    CHECK(std::string(e.what()) == "unknown unit 'mgg' in '4 mgg'; did you mean 'mg'?");
 }
 
 TEST_CASE("units: an unknown unit where a dimension is expected suggests units of that dimension", "[units]") {
     // Wording of our own messages; no numeric source needed.
     try {
-        (void)plateau::units::parse_quantity("3 hrs", plateau::units::kTime);
+        (void)plateau::units::parse_quantity("3 secs", plateau::units::kTime);
         FAIL("expected a TextError");
     } catch (const plateau::TextError& e) {
-        CHECK(std::string(e.what()) == "unknown unit 'hrs' in '3 hrs'");
+        CHECK(std::string(e.what()) == "unknown unit 'secs' in '3 secs'; did you mean 'sec'?");
         CHECK(e.expected() == "a time unit: s, min, h, d, wk");
         CHECK(e.offset() == 2);
     }
@@ -429,4 +431,43 @@ TEST_CASE("units: an unknown unit where a dimension is expected suggests units o
     } catch (const plateau::TextError& e) {
         CHECK(e.expected() == "a concentration unit such as mg/L, ug/mL, ng/mL");
     }
+}
+
+TEST_CASE("units: spelled-out time units", "[units]") {
+    // 1 h = 60 min, 1 d = 24 h, 1 wk = 168 h: definitions of the units (common practice, no source).
+    using plateau::units::parse_quantity;
+    using plateau::units::kTime;
+    const std::pair<const char*, double> cases[] = {
+        {"2 hour", 2.0},     {"2 hours", 2.0},   {"2 hr", 2.0},     {"2 hrs", 2.0},      {"30 min", 0.5},
+        {"30 mins", 0.5},    {"30 minute", 0.5}, {"30 minutes", 0.5}, {"3 day", 72.0},   {"3 days", 72.0},
+        {"1 week", 168.0},   {"2 weeks", 336.0}, {"4 mg/hour", 4.0},  {"0.5 1/hours", 0.5},
+    };
+    for (const auto& [text, hours] : cases) {
+        INFO(text);
+        const auto q = parse_quantity(text);
+        CHECK(q.value == Approx(hours).epsilon(1e-15));
+        if (std::string(text).find('/') == std::string::npos) CHECK(q.dim == kTime);
+    }
+    // Names stay case-sensitive: "Hours" is not a unit, but the message points to the one meant.
+    try {
+        (void)parse_quantity("2 Hours", kTime);
+        FAIL("expected a TextError");
+    } catch (const plateau::TextError& e) {
+        CHECK(std::string(e.what()) == "unknown unit 'Hours' in '2 Hours'; did you mean 'hours'?");
+    }
+}
+
+TEST_CASE("core: did-you-mean suggestions by edit distance", "[units][core]") {
+    // Edit distances of short words, counted by hand (common practice, no source).
+    CHECK(plateau::edit_distance("evry", "every") == 1);
+    CHECK(plateau::edit_distance("orla", "oral") == 1);   // one swap of neighbours
+    CHECK(plateau::edit_distance("kitten", "sitting") == 3);
+    CHECK(plateau::edit_distance("", "abc") == 3);
+    CHECK(plateau::closest("fractoin", {"into", "fraction", "lag"}) == "fraction");
+    CHECK(plateau::closest("kel", {"ka", "cl", "v"}).empty());       // two edits from a three-letter word: no guess
+    CHECK(plateau::closest("x", {"v", "t"}).empty());                // one letter: anything is one edit away
+    CHECK(plateau::closest("simple-orl", {"simple-oral", "two-comp-iv"}) == "simple-oral");
+    CHECK(plateau::closest("IV", {"oral", "iv"}) == "iv");
+    CHECK(plateau::did_you_mean("cnc", {"conc", "conc_ng"}) == "; did you mean 'conc'?");
+    CHECK(plateau::did_you_mean("zzz", {"conc"}).empty());
 }
