@@ -129,12 +129,26 @@ report::Candidate evaluate(regimen::Regimen r, const sim::Options& opt,
                           taylor::outcome_name(c.sim.outcome) + ") after " +
                           plural(static_cast<std::size_t>(c.sim.steps), "step") + " in " + quoted(path) +
                           "; nothing was written\n  ";
-        if (c.sim.outcome == taylor::Outcome::StepLimit)
-            msg += "the horizon needs more than " +
-                   std::to_string(sim::step_budget(opt, c.sim.trajectory.n_series(), c.sim.order)) +
-                   " steps (the budget: " + std::to_string(opt.max_steps) + " steps, 1 GiB of step polynomials): "
-                   "try a looser --tol or a shorter horizon";
-        else
+        if (c.sim.outcome == taylor::Outcome::StepLimit && !c.sim.stiff_state.empty())
+            msg += "the model is stiff here: compartment '" + c.sim.stiff_state + "' turns over at " +
+                   num(c.sim.stiff_rate) + " 1/h, and the steps (" + num(c.sim.stiff_step) + " h) are held by the "
+                   "stability of the explicit Taylor method, not by accuracy, so a looser --tol does not help; "
+                   "the horizon needs more than " + std::to_string(c.sim.budget) + " steps. Shorten the horizon, "
+                   "or check whether so fast a rate is needed";
+        else if (c.sim.outcome == taylor::Outcome::StepLimit)
+            msg += "the horizon needs more than " + std::to_string(c.sim.budget) + " steps (the budget: " +
+                   std::to_string(opt.max_steps) + " steps, 1 GiB of step polynomials): try a looser --tol or a "
+                   "shorter horizon";
+        else if (c.sim.outcome == taylor::Outcome::NegativeAmount && c.sim.failed_state >= 0) {
+            const auto& m = c.regimen.model;
+            const auto idx = static_cast<std::size_t>(c.sim.failed_state);
+            const std::string& name = m.compartments[idx].name;
+            const auto& rate = m.rates[idx];
+            msg += "compartment '" + name + "' fell below zero, which no amount can: its rate '" + rate.text +
+                   "' (" + rate.pos.file + ":" + std::to_string(rate.pos.line) + ":" + std::to_string(rate.pos.col) +
+                   ") takes mass out of it while it is empty. Make the loss vanish with the amount (a factor of '" +
+                   name + "' or of a concentration of it), and check the parameter units and signs";
+        } else
             msg += explain_nonfinite(c.regimen, c.sim);
         throw NumericalError(msg);
     }

@@ -520,8 +520,9 @@ void resolution_warnings(regimen::Regimen& r) {
         char buf[96];
         std::snprintf(buf, sizeof buf, "doses at %.12g h and %.12g h", a.t, b.t);
         r.warnings.push_back({r.doses[b.entry].pos, std::string(buf) +
-                                                        " are closer than the time resolution (1e-9 of the time, at "
-                                                        "least 1e-9 h) and are given at one instant"});
+                                                        " are closer than the time resolution (" + fmt(regimen::kInstantRelative) +
+                                                        " of the time, at least " + fmt(regimen::kInstantRelative) +
+                                                        " h) and are given at one instant"});
         break;  // one is enough to point at the problem
     }
     std::stable_sort(r.warnings.begin(), r.warnings.end(),

@@ -138,12 +138,9 @@ std::vector<Row> comparison_rows(const std::vector<Candidate>& cs) {
         });
     if (any_above) {
         add("Time above threshold, day 1", "h", [](const Candidate&, const Figures& f) { return opt_hours(f.above_day1_hours); });
-        // The day a missed or late dose hurts most: shown when some regimen runs more than one full day.
-        const bool several_days = std::any_of(cs.begin(), cs.end(), [](const Candidate& c) {
-            return std::count_if(c.exposure.days.begin(), c.exposure.days.end(),
-                                 [](const metrics::Day& d) { return !d.partial; }) > 1;
-        });
-        if (several_days)
+        // The day a missed or late dose hurts most: shown when, for some regimen, it is not the first day.
+        const bool later_worst = std::any_of(fs.begin(), fs.end(), [](const Figures& f) { return f.above_worst_day > 1; });
+        if (later_worst)
             add("Time above threshold, worst day", "h", [](const Candidate&, const Figures& f) {
                 return f.above_worst_day_hours
                            ? opt_hours(f.above_worst_day_hours) + " d" + std::to_string(f.above_worst_day)

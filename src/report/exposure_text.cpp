@@ -71,8 +71,8 @@ void write_exposure_text(std::ostream& out, const regimen::Regimen& r, const sim
         out << '\n';
         auto line = [&](const metrics::Interval& iv) {
             // Times with the 6 significant digits of every other time in this report (to 0.001 h below 1000 h).
-            out << "  " << pad_left(num(iv.start, 6), wcol) << pad_left(num(iv.end, 6), wcol)
-                << pad_left(num(in_output_unit(o, iv.peak.value)), wcol) << pad_left(num(iv.peak.time, 6), wcol)
+            out << "  " << pad_left(num(iv.start, kTimeDigits), wcol) << pad_left(num(iv.end, kTimeDigits), wcol)
+                << pad_left(num(in_output_unit(o, iv.peak.value)), wcol) << pad_left(num(iv.peak.time, kTimeDigits), wcol)
                 << pad_left(num(in_output_unit(o, iv.trough)), wcol)
                 << pad_left(num(in_output_unit(o, iv.minimum.value)), wcol)
                 << pad_left(num(in_output_unit(o, iv.auc), 5), wcol);

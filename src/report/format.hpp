@@ -12,6 +12,9 @@ namespace plateau::report {
 // The AUC unit of an output unit: "mg/L" -> "mg·h/L", "ng/mL" -> "ng·h/mL", "mg" -> "mg·h".
 std::string auc_unit(std::string_view unit_text);
 
+// Significant digits of times in hours in every table (interval bounds, peak times).
+inline constexpr int kTimeDigits = 6;
+
 // At most `sig` significant digits, trailing zeros dropped, no exponent for ordinary magnitudes ("12.35",
 // "0.001235", "10", "1.235e+07").
 std::string num(double v, int sig = 4);

@@ -250,8 +250,8 @@ void interval_table(std::ostream& out, const Candidate& c) {
     out << "</tr></thead><tbody>\n";
     for (std::size_t i = 0; i < e.intervals.size(); ++i) {
         const auto& iv = e.intervals[i];
-        out << "<tr><td>" << i + 1 << "</td><td>" << num(iv.start, 8) << "</td><td>" << num(iv.end, 8) << "</td><td>"
-            << v(iv.peak.value) << "</td><td>" << num(iv.peak.time, 8) << "</td><td>" << v(iv.trough) << "</td><td>"
+        out << "<tr><td>" << i + 1 << "</td><td>" << num(iv.start, kTimeDigits) << "</td><td>" << num(iv.end, kTimeDigits) << "</td><td>"
+            << v(iv.peak.value) << "</td><td>" << num(iv.peak.time, kTimeDigits) << "</td><td>" << v(iv.trough) << "</td><td>"
             << v(iv.minimum.value) << "</td><td>" << num(in_output_unit(o, iv.auc), 5) << "</td>";
         if (e.above) out << "<td>" << num(iv.above_hours, 4) << "</td>";
         if (e.window) out << "<td>" << num(iv.window_hours, 4) << "</td>";

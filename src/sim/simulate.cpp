@@ -6,6 +6,7 @@
 
 #include "regimen/time.hpp"
 #include "sim/schedule.hpp"
+#include "trajectory/poly.hpp"
 
 namespace plateau::sim {
 
@@ -71,6 +72,45 @@ double dose_scale(const std::vector<Event>& events) {
     return big;
 }
 
+// At the step budget: when the last free step is more than twice the time constant of the fastest
+// compartment (linear models: the largest loss rate −A_ss), the step is held by the method's stability, not by
+// accuracy (accurate steps of a mode with content keep h·rate below ~1; the order-p polynomial's real stability
+// limit is h·rate ≈ 4–7 for p = 8–15). A looser tolerance then does not help.
+void note_stiffness(Simulation& sim, const model::Model& m, const taylor::Expander& ex, double h) {
+    if (!ex.linear() || !(h > 0.0)) return;
+    const std::size_t ns = static_cast<std::size_t>(ex.n_states());
+    const auto a = ex.linear_matrix();
+    std::size_t fast = 0;
+    for (std::size_t s = 1; s < ns; ++s)
+        if (-a[s * ns + s] > -a[fast * ns + fast]) fast = s;
+    const double rate = -a[fast * ns + fast];
+    if (!(rate * h > 2.0) || fast >= m.compartments.size()) return;
+    sim.stiff_state = m.compartments[fast].name;
+    sim.stiff_rate = rate;
+    sim.stiff_step = h;
+}
+
+}  // namespace
+
+namespace {
+
+// The first time in (0, h) at which a compartment that starts the step above zero reaches zero, when it ends
+// the step below zero; h otherwise. `which` is that compartment (−1 when none).
+double emptying_time(const std::vector<double>& coeffs, std::size_t nc, std::size_t stride, double h, int& which) {
+    double first = h;
+    which = -1;
+    for (std::size_t c = 0; c < nc; ++c) {
+        const std::span<const double> p(coeffs.data() + c * stride, stride);
+        if (!(p[0] > 0.0) || traj::horner(p, h) >= 0.0) continue;
+        const std::vector<double> roots = traj::roots_in(p, 0.0, h);
+        if (!roots.empty() && roots.front() < first) {
+            first = roots.front();
+            which = static_cast<int>(c);
+        }
+    }
+    return first;
+}
+
 }  // namespace
 
 Simulation integrate_events(const model::Model& m, taylor::Stepper& stepper, const std::vector<Event>& events,
@@ -91,6 +131,7 @@ Simulation integrate_events(const model::Model& m, taylor::Stepper& stepper, con
     for (double v : x0) scale = std::max(scale, std::abs(v));
     const double floor = opt.empty_decayed ? opt.dose_floor * scale : 0.0;
     const std::vector<char> drain_only = drain_only_states(stepper.expander());
+    double last_h = 0.0, window_start = 0.0;
     const double saved_floor = stepper.floor();
     stepper.set_floor(floor);
     struct Restore {  // the stepper is the caller's: leave its floor as it was
@@ -114,9 +155,20 @@ Simulation integrate_events(const model::Model& m, taylor::Stepper& stepper, con
         if (t >= t_end) break;
         const double stop = next < events.size() ? std::min(events[next].time, t_end) : t_end;
         while (t < stop) {
-            if (sim.steps >= budget) {
+            // Fail fast: past an eighth of the budget, stop when the recent step length says the horizon
+            // would need more than four budgets.
+            bool hopeless = false;
+            if (sim.steps > 0 && sim.steps % 4096 == 0) {
+                const double recent = (t - window_start) / 4096.0;
+                hopeless = sim.steps >= budget / 8 && recent > 0.0 &&
+                           static_cast<double>(sim.steps) + (t_end - t) / recent > 4.0 * static_cast<double>(budget);
+                window_start = t;
+            }
+            if (sim.steps >= budget || hopeless) {
                 sim.outcome = taylor::Outcome::StepLimit;
                 sim.failed_at = t;
+                sim.projected = hopeless;
+                note_stiffness(sim, m, stepper.expander(), last_h);
                 return sim;
             }
             const double h_max = stop - t;
@@ -127,8 +179,18 @@ Simulation integrate_events(const model::Model& m, taylor::Stepper& stepper, con
                 return sim;
             }
             double h = r.h;
-            const bool lands = r.clipped || h_max - h <= 1e-12 * std::max(1.0, stop);
+            if (!r.clipped) last_h = h;
+            bool lands = r.clipped || h_max - h <= 1e-12 * std::max(1.0, stop);
             if (lands) h = h_max;
+            // Amounts cannot fall below zero. A compartment that starts the step with something in it and ends
+            // it below zero was emptied inside the step (saturable elimination far above km is a straight line
+            // down, and the drop from km to zero takes an instant the series cannot see): the step ends where
+            // the amount reaches zero, and the amount is zero from there.
+            int emptied = -1;
+            if (const double cut = emptying_time(coeffs, nc, stride, h, emptied); cut < h) {
+                h = cut;
+                lands = false;
+            }
             sim.trajectory.append(t, h, coeffs);
             ++sim.steps;
             double largest = 0.0;
@@ -143,6 +205,16 @@ Simulation integrate_events(const model::Model& m, taylor::Stepper& stepper, con
                 }
                 largest = std::max(largest, std::abs(v));
             }
+            if (emptied >= 0) x[static_cast<std::size_t>(emptied)] = 0.0;
+            // Below zero by more than the tolerance allows, from a start at or below zero: no amount can do
+            // that, so no figure is reported (the model's rates let an empty compartment lose mass).
+            for (std::size_t c = 0; c < nc; ++c)
+                if (x[c] < -std::max(10.0 * opt.tol, 1e-12) * std::max(largest, scale)) {
+                    sim.outcome = taylor::Outcome::NegativeAmount;
+                    sim.failed_at = t + h;
+                    sim.failed_state = static_cast<int>(c);
+                    return sim;
+                }
             // Emptied compartments: an amount below the dose floor, or below the rounding unit of the largest
             // amount (it changes no other amount by more than that rounding), is set to zero. Otherwise an
             // emptied fast compartment (a gut after absorption) is followed down to 1e-300 mg, or hovers at

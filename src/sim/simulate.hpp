@@ -43,6 +43,13 @@ struct Simulation {
     int order = 0;
     taylor::Outcome outcome = taylor::Outcome::Ok;
     double failed_at = 0.0;      // time of the failure when outcome != Ok
+    int failed_state = -1;       // NegativeAmount: the compartment that went below zero
+    bool projected = false;      // StepLimit declared early: the recent steps would need > 4 budgets
+    // StepLimit with steps held by stability (linear models): the fastest compartment, its loss rate (1/h) and
+    // the last free step (h). Empty when the steps were set by accuracy.
+    std::string stiff_state;
+    double stiff_rate = 0.0;
+    double stiff_step = 0.0;
     int output_series(int output) const { return n_states + output; }
 };
 

@@ -67,6 +67,7 @@ const char* outcome_name(Outcome o) {
         case Outcome::Ok: return "ok";
         case Outcome::NonFinite: return "non-finite state";
         case Outcome::StepLimit: return "step limit reached";
+        case Outcome::NegativeAmount: return "negative amount";
     }
     return "?";
 }

@@ -106,3 +106,33 @@ TEST_CASE("engine: an emptied fast absorption compartment is set to zero instead
     CHECK(year.steps < 20000);  // measured: 10 107; without emptying the 2 000 000-step budget ran out at day 172
     CHECK(year.trajectory.value(0, 365 * 24.0 - 1.0) == 0.0);  // the gut, 23 h after the last dose
 }
+
+TEST_CASE("engine: a stiff model at the step budget names its fast compartment", "[numeric][decayed]") {
+    // Fast exchange between central and tissue (k12 = k21 = 5000 /h) that never empties: the explicit method
+    // must keep h·5000 near its stability limit for the whole horizon.
+    const model::Model m = build_model({{{"k10", 0.1}, {"k12", 5000.0}, {"k21", 5000.0}},
+                                        {{"central", "-(k10 + k12)*central + k21*tissue"},
+                                         {"tissue", "k12*central - k21*tissue"}},
+                                        {{"conc", "central/10"}},
+                                        {{"iv", "central"}}});
+    sim::Options opt;
+    opt.max_steps = 20000;
+    const sim::Simulation s = sim::simulate(m, m.default_values(), {dose(0, 100.0, 0.0)}, 1000.0, opt);
+    CHECK(s.outcome == taylor::Outcome::StepLimit);
+    CHECK(s.stiff_state == "central");  // the largest loss rate, k10 + k12 (computed by hand)
+    CHECK(s.stiff_rate == Approx(5000.1).epsilon(1e-12));
+    CHECK(s.stiff_step * s.stiff_rate > 2.0);  // beyond what accuracy alone would allow
+    // Fail fast: the recent steps show the 1000 h would need ~1.7 million steps, so the run stops early.
+    CHECK(s.projected);
+    CHECK(s.steps < opt.max_steps);
+
+    // The same model with slow exchange runs to the end with steps set by accuracy.
+    const model::Model slow = build_model({{{"k10", 0.1}, {"k12", 0.5}, {"k21", 0.5}},
+                                           {{"central", "-(k10 + k12)*central + k21*tissue"},
+                                            {"tissue", "k12*central - k21*tissue"}},
+                                           {{"conc", "central/10"}},
+                                           {{"iv", "central"}}});
+    const sim::Simulation ok = sim::simulate(slow, slow.default_values(), {dose(0, 100.0, 0.0)}, 1000.0, opt);
+    CHECK(ok.outcome == taylor::Outcome::Ok);
+    CHECK(ok.stiff_state.empty());
+}

@@ -5,12 +5,15 @@
 
 #include <algorithm>
 #include <cmath>
+#include <string>
 #include <vector>
 
 #include <boost/math/special_functions/lambert_w.hpp>
 
 #include "../support/build_model.hpp"
+#include "input/load.hpp"
 #include "sim/simulate.hpp"
+#include "units/units.hpp"
 
 using namespace plateau;
 
@@ -123,4 +126,24 @@ TEST_CASE("engine: Michaelis-Menten error falls as the tolerance tightens", "[nu
     const auto ten = s.trajectory.level_roots(s.output_series(0), 10.0, 0.0, 130.0);
     REQUIRE(ten.size() == 1);
     CHECK(rel(ten[0], 31.8277507604) < 1e-10);  // Schnell & Mendoza 1997; Goudar, Sonnad & Duggleby 1999 — from memory
+}
+
+TEST_CASE("numeric: near zero-order elimination empties the compartment exactly, never below zero", "[numeric]") {
+    // km far below the concentrations: elimination runs at vmax until the amount is gone, so 100 mg at
+    // vmax = 20 mg/h empties at 5 h and the AUC is the triangle C0·5 h/2 = 2.5 mg/L · 2.5 h = 6.25 mg·h/L
+    // (the zero-order limit of the closed form in REFERENCES case 7, Wagner 1973, from memory; computed). The
+    // error of the limit is of order km·V/vmax, below 1e-11 here.
+    for (const char* km : {"1e-11 mg/L", "1e-14 mg/L"}) {
+        INFO("km " << km);
+        const auto m = plateau::input::load_model(std::string(PLATEAU_SOURCE_DIR) + "/models/one-compartment-mm-iv.toml");
+        std::vector<double> p = m.default_values();
+        p[static_cast<std::size_t>(m.parameter_index("km"))] = plateau::units::parse_quantity(km).value;
+        const plateau::sim::Simulation s =
+            plateau::sim::simulate(m, p, {plateau::sim::Dose{0.0, 0, 100.0, 0.0, 0}}, 24.0);
+        REQUIRE(s.outcome == plateau::taylor::Outcome::Ok);
+        const int c = s.output_series(m.output_index("conc"));
+        CHECK(s.trajectory.integral(c, 0.0, 24.0) == Approx(6.25).epsilon(1e-9));
+        CHECK(s.trajectory.value(0, 24.0) == 0.0);
+        for (double t = 0.0; t <= 24.0; t += 0.25) CHECK(s.trajectory.value(0, t) >= 0.0);
+    }
 }

@@ -84,7 +84,8 @@ TEST_CASE("report: comparison table cells are the JSON figures rounded as displa
     const json::Value all = compare_json(regimens, dir);
     const auto cs = candidates(regimens);
     const auto rows = report::comparison_rows(cs);
-    REQUIRE(rows.size() == 15);  // every row applies: all four repeat over 3 days, have a threshold and a window
+    REQUIRE(rows.size() == 14);  // every row applies: all four repeat, have a threshold and a window (the worst
+                                 // day is day 1 for each, so that row is left out)
 
     // What each row shows, taken from one regimen's JSON object, formatted as the table formats it.
     using Cell = std::string (*)(const json::Value&);
@@ -212,4 +213,20 @@ TEST_CASE("report: a comparison judges every regimen against one set of targets"
     CHECK(json::number(json::at(all, "regimens/1"), "above/threshold") == 2.0);
     CHECK(json::number(json::at(all, "regimens/1"), "steady_state/above_fraction") ==
           json::number(json::at(all, "regimens/0"), "steady_state/above_fraction"));
+}
+
+TEST_CASE("report: the JSON says which doses form the steady-state cycle and the trough before each", "[report][json]") {
+    // Day 2's evening dose missed in a 06:00/14:00/22:00 schedule: the cycle is the prescribed pattern, one
+    // 1 g 30-minute infusion every 8 h (the clock times are 8 h apart).
+    TempDir dir("cycle-json");
+    const json::Value j = run_json(source_path("examples/zelmarin-missed-dose/missed-evening.toml"), dir, "c.json");
+    CHECK(json::number(j, "steady_state/cycle/period") == 8.0);
+    CHECK(json::at(j, "steady_state/cycle/doses").items.size() == 1);
+    CHECK(json::number(j, "steady_state/cycle/doses/0/offset") == 0.0);
+    CHECK(json::number(j, "steady_state/cycle/doses/0/amount_mg") == 1000.0);
+    CHECK(json::number(j, "steady_state/cycle/doses/0/over") == 0.5);
+    CHECK(json::at(j, "steady_state/cycle/doses/0/route").s == "iv");
+    CHECK(json::at(j, "steady_state/troughs").items.size() == 1);
+    CHECK(json::number(j, "steady_state/troughs/0/value") == json::number(j, "steady_state/trough"));
+    CHECK(json::number(j, "doses/count") == 11.0);  // 12 prescribed, one missed
 }
