@@ -35,6 +35,8 @@ regimen::Regimen variant(const Template& t, const Shape& s, double amount, std::
     const regimen::DoseSpec old = r.doses[t.series];
     regimen::DoseSpec d = old;
     d.amount = amount;
+    d.per_size = regimen::Per::None;  // the search finds a fixed amount in mg
+    d.per_amount = 0.0;
     d.every = s.tau;
     d.over = s.over;
     d.at = old.first_time();
@@ -45,7 +47,7 @@ regimen::Regimen variant(const Template& t, const Shape& s, double amount, std::
     d.count = brief ? 2L : std::max(2L, static_cast<long>(std::ceil(span / s.tau - 1e-9)));
     if (loading) {
         regimen::DoseSpec first = d;
-        first.amount = *loading;
+        first.amount = *loading;  // fixed mg, like the maintenance dose
         first.count = 1;
         first.every = 0.0;
         d.at += s.tau;

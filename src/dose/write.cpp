@@ -65,6 +65,22 @@ std::string regimen_text(const regimen::Regimen& r, const std::string& header) {
             out << o.name << " = " << quantity(units::to_unit(o.value, p.unit), p.unit_text) << "\n";
         }
     }
+    if (!r.patient.empty()) {
+        out << "\n[patient]\n";
+        for (const auto& pv : r.patient) {
+            out << pv.name << " = ";
+            if (pv.index >= 0) {
+                const auto& p = r.model.parameters[static_cast<std::size_t>(pv.index)];
+                out << quantity(units::to_unit(pv.value, p.unit), p.unit_text);
+            } else if (pv.name == regimen::kHeightName) {
+                out << quantity(pv.value, "cm");
+            } else {
+                out << quantity(pv.value * 1e-6, "kg");  // a body weight, held in mg
+            }
+            out << "\n";
+        }
+    }
+    // Amounts are written in mg as resolved for the patient (a per-kg amount becomes the patient's dose).
     for (const auto& d : r.doses) {
         out << "\n[[doses]]\nroute = " << str(d.route) << "\namount = " << quantity(d.amount, "mg")
             << "\nat = " << quantity(d.at, "h") << "\n";

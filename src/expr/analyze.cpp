@@ -166,18 +166,6 @@ const Node* first_varying(const Node& root, const std::function<bool(std::string
 
 bool is_chain(Op op) { return op == Op::Add || op == Op::Sub || op == Op::Mul || op == Op::Div; }
 
-// The binary nodes down the left side of `e` (`e` first) while they are sums, differences, products or
-// quotients, and the first operand below them. Walking these in a loop keeps the recursion as deep as the
-// nesting (parentheses, signs, powers, calls: bounded by the parser), not as long as the expression.
-const Node* left_spine(const Node& e, std::vector<const Node*>& spine) {
-    const Node* n = &e;
-    while (is_chain(n->op)) {
-        spine.push_back(n);
-        n = n->a.get();
-    }
-    return n;
-}
-
 [[noreturn]] void fail(const Node& at, std::string message, std::string expected = {}) {
     throw TextError(std::move(message), at.begin, at.end > at.begin ? at.end - at.begin : 1, std::move(expected));
 }
@@ -207,7 +195,7 @@ units::Dim infer(const Node& e, const DimLookup& lookup, const std::function<boo
         case Op::Mul:
         case Op::Div: {
             std::vector<const Node*> spine;
-            units::Dim da = infer(*left_spine(e, spine), lookup, is_constant);
+            units::Dim da = infer(*left_chain(e, spine), lookup, is_constant);
             for (auto it = spine.rbegin(); it != spine.rend(); ++it) {
                 const Node& s = **it;
                 const units::Dim db = infer(*s.b, lookup, is_constant);
@@ -291,6 +279,15 @@ bool has_var(const Node& root) {
 
 }  // namespace
 
+const Node* left_chain(const Node& e, std::vector<const Node*>& chain) {
+    const Node* n = &e;
+    while (is_chain(n->op)) {
+        chain.push_back(n);
+        n = n->a.get();
+    }
+    return n;
+}
+
 units::Dim infer_dim(const Node& e, const DimLookup& lookup,
                      const std::function<bool(std::string_view)>& is_constant) {
     return infer(e, lookup, is_constant);
@@ -322,7 +319,7 @@ double evaluate(const Node& e, const ValueLookup& value) {
         case Op::Mul:
         case Op::Div: {
             std::vector<const Node*> spine;
-            double x = evaluate(*left_spine(e, spine), value);
+            double x = evaluate(*left_chain(e, spine), value);
             for (auto it = spine.rbegin(); it != spine.rend(); ++it) {
                 const Node& s = **it;
                 const double y = evaluate(*s.b, value);

@@ -51,6 +51,12 @@ using DimLookup = std::function<std::optional<units::Dim>(std::string_view name)
 units::Dim infer_dim(const Node& e, const DimLookup& lookup,
                      const std::function<bool(std::string_view)>& is_constant);
 
+// The sums, differences, products and quotients down the left side of `e` (`e` first, appended to `chain`) and
+// the operand below the last of them (`e` itself if it is none of these). A walk that loops over the chain and
+// recurses only into right operands and other operations recurses as deep as the nesting (bounded by the
+// parser), not once per term: a 10 000-term rate is a left-deep chain 10 000 long.
+const Node* left_chain(const Node& e, std::vector<const Node*>& chain);
+
 // Every identifier used, in order of first appearance.
 std::vector<std::string> identifiers(const Node& e);
 

@@ -4,6 +4,7 @@
 #include <map>
 #include <stdexcept>
 #include <tuple>
+#include <vector>
 
 namespace plateau::taylor {
 
@@ -119,10 +120,23 @@ public:
         switch (n.op) {
             case Op::Num: return constant(n.num);
             case Op::Var: return lookup(n.name);
-            case Op::Add: return binary(OpCode::Add, build(*n.a), build(*n.b));
-            case Op::Sub: return binary(OpCode::Sub, build(*n.a), build(*n.b));
-            case Op::Mul: return binary(OpCode::Mul, build(*n.a), build(*n.b));
-            case Op::Div: return binary(OpCode::Div, build(*n.a), build(*n.b));
+            case Op::Add:
+            case Op::Sub:
+            case Op::Mul:
+            case Op::Div: {
+                // A loop along the chain of a long sum or product: one recursive call per term overflows the stack.
+                std::vector<const expr::Node*> chain;
+                int acc = build(*expr::left_chain(n, chain));
+                for (auto it = chain.rbegin(); it != chain.rend(); ++it) {
+                    const expr::Node& c = **it;
+                    const OpCode code = c.op == Op::Add ? OpCode::Add
+                                        : c.op == Op::Sub ? OpCode::Sub
+                                        : c.op == Op::Mul ? OpCode::Mul
+                                                          : OpCode::Div;
+                    acc = binary(code, acc, build(*c.b));
+                }
+                return acc;
+            }
             case Op::Neg: {
                 int a = build(*n.a);
                 if (tape_.code[static_cast<std::size_t>(a)].op == OpCode::Const)

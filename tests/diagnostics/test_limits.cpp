@@ -8,9 +8,11 @@
 
 #include <filesystem>
 #include <optional>
+#include <sstream>
 #include <string>
 #include <vector>
 
+#include "cli/commands.hpp"
 #include "core/diagnostic.hpp"
 #include "expr/expr.hpp"
 #include "input/load.hpp"
@@ -142,6 +144,14 @@ TEST_CASE("input: a rate of 9 999 terms loads and a rate of 10 001 is refused", 
     CHECK(diagnose(ok, false).empty());
     const std::string products = dir.write("long-product.toml", model_text("-cl/v*central" + repeat("*1", 9996)));
     CHECK(diagnose(products, false).empty());
+    // ... and runs: the tape is built with a loop along the sum. 100 mg into 40 L peaks at 2.5 mg/L at t = 0
+    // (computed from the closed form; r is 0 mg/h).
+    dir.write("r.toml", "id = \"long\"\nmodel = \"long.toml\"\n\n[[doses]]\nroute = \"iv\"\namount = \"100 mg\"\n");
+    plateau::cli::RunOptions o;
+    o.regimen = dir.file("r.toml");
+    std::ostringstream out, err;
+    REQUIRE(plateau::cli::run_command(o, out, err) == plateau::cli::kExitOk);
+    CHECK(out.str().find("2.5 mg/L at 0 h") != std::string::npos);
     const std::string bad = dir.write("too-long.toml", model_text("-cl/v*central" + repeat(" + r", 9998)));
     const std::vector<Diagnostic> ds = diagnose(bad, false);
     REQUIRE(ds.size() == 1);
