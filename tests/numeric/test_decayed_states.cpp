@@ -94,7 +94,11 @@ TEST_CASE("engine: an emptied fast absorption compartment is set to zero instead
     const auto on = run(m, daily(500.0, 3), 72.0, true);
     const auto off = run(m, daily(500.0, 3), 72.0, false);
     INFO("steps over 3 days with emptying " << on.steps << ", without " << off.steps);
-    CHECK(on.steps * 100 < off.steps);  // measured: 93 against 34 878
+    // Measured: 90 steps either way. Without emptying, the gut's series overshooting below zero now ends the
+    // step where it reaches zero (amounts cannot go negative), which empties it too; before either rule, the
+    // emptied gut was followed at the stability limit for 34 878 steps.
+    CHECK(on.steps < 1000);
+    CHECK(off.steps < 1000);
     const int c = on.output_series(0);
     double worst = 0.0;
     for (double t = 0.01; t < 72.0; t += 0.37) worst = std::max(worst, rel(on.trajectory.value(c, t), off.trajectory.value(c, t)));
