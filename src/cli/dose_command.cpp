@@ -106,6 +106,13 @@ int dose_command(const DoseOptions& opt, std::ostream& out, std::ostream& err) {
             targets.auc24 = targets.auc24 + ".." + targets.auc24;
         dose::Template t = dose::make_template(load(opt.regimen, opt.model_dirs, targets));
         const regimen::Regimen& r = t.regimen;
+        // The model file is an input too: no output may replace it, by any spelling or link.
+        check_outputs(opt.json, "", "", {opt.regimen, r.model.path});
+        if (!opt.write.empty()) {
+            std::error_code ec;
+            if (std::filesystem::equivalent(opt.write, r.model.path, ec) && !ec)
+                throw UsageError("--write: " + cli::quoted(opt.write) + " is the model file; it would be overwritten");
+        }
         const model::Output& o = r.model.outputs[static_cast<std::size_t>(output_of_target(r))];
         const std::vector<dose::Goal> goals = dose::goals_of(r.targets, o);
         if (std::none_of(goals.begin(), goals.end(), [](const dose::Goal& g) { return g.side != dose::Side::Upper; }))
