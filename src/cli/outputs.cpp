@@ -170,6 +170,19 @@ std::string today() {
     return buf;
 }
 
+void write_all(const std::vector<ExtraFile>& texts, const FigureFile& figure, std::ostream& summary) {
+    Staging staging;
+    for (const auto& f : texts) staging.add_text(f.path, f.text, f.what, f.line);
+    if (!figure.path.empty()) {
+        const std::string temp = staging.create(figure.path, "--plot", figure.line);
+        figure.draw(temp);
+        if (!complete_figure(temp, lower_extension(figure.path)))
+            throw plot::PlotError("gnuplot did not write a complete " + lower_extension(figure.path).substr(1) +
+                                  " file for " + cli::quoted(figure.path) + " (is the disk full?)");
+    }
+    staging.commit(summary);
+}
+
 void write_file(const std::string& path, const std::string& text, std::string_view what) {
     Staging s;
     s.add_text(path, text, what, "");

@@ -7,6 +7,7 @@
 // removed and no target is touched.
 #pragma once
 
+#include <functional>
 #include <ostream>
 #include <string>
 #include <string_view>
@@ -37,6 +38,17 @@ void write_outputs(const std::vector<report::Candidate>& cs, const std::string& 
 // of `inputs` (call again once the model files are known) or another output. Throws UsageError.
 void check_outputs(const std::string& json, const std::string& report, const std::string& plot,
                    const std::vector<std::string>& inputs, const std::string& csv = {});
+
+// A figure written along with text files: `draw` renders it into the temporary path it is given.
+struct FigureFile {
+    std::string path;
+    std::function<void(const std::string&)> draw;
+    std::string line;  // printed once written
+};
+
+// Any command's files by the same rules, all or none: the texts, then the figure (when `figure.path` is set),
+// checked, then renamed together; the lines go to `summary`. Throws UsageError or plot::PlotError.
+void write_all(const std::vector<ExtraFile>& texts, const FigureFile& figure, std::ostream& summary);
 
 // Writes one file by the same rules (temporary file, check, rename). `what` names the option in messages.
 // Throws UsageError.

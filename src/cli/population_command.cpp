@@ -167,24 +167,24 @@ int population_command(const PopulationOptions& opt, std::ostream& out, std::ost
                                                          pr.thresholds));
         }
 
+        // Every file of the command is written together, or none is.
         std::ostringstream written;
+        std::vector<ExtraFile> files;
         auto emit = [&](const std::string& path, const char* what, auto&& writer) {
             if (path.empty()) return;
             std::ostringstream s;
             writer(s);
             if (path == "-") out << s.str();
-            else {
-                write_file(path, s.str(), what);
-                written << "Wrote " << path << "\n";
-            }
+            else files.push_back({path, s.str(), what, "Wrote " + path});
         };
         emit(opt.json, "--json", [&](std::ostream& s) { report::write_population_json(s, pr); });
         emit(opt.csv, "--csv", [&](std::ostream& s) { report::write_population_csv(s, pr); });
         emit(opt.report, "--report", [&](std::ostream& s) { s << report::population_html(pr); });
-        if (!opt.plot.empty()) {
-            plot::render_file(report::overview_figure(pr), opt.plot);
-            written << "Wrote " << opt.plot << "\n";
-        }
+        FigureFile figure;
+        if (!opt.plot.empty())
+            figure = {opt.plot, [&](const std::string& temp) { plot::render_file(report::overview_figure(pr), temp); },
+                      "Wrote " + opt.plot};
+        write_all(files, figure, written);
         std::string trailer;
         for (const auto& n : notes) trailer += "Note: " + n + "\n";
         trailer += written.str();
