@@ -5,34 +5,15 @@
 #include "dose/print.hpp"
 #include "report/caution.hpp"
 #include "report/format.hpp"
+#include "report/json.hpp"
 
 namespace plateau::dose {
 
 namespace {
 
-std::string q(std::string_view s) {
-    std::string o = "\"";
-    for (unsigned char c : s) {
-        if (c == '"' || c == '\\') {
-            o += '\\';
-            o += static_cast<char>(c);
-        } else if (c < 0x20) {
-            char buf[8];
-            std::snprintf(buf, sizeof buf, "\\u%04x", c);
-            o += buf;
-        } else {
-            o += static_cast<char>(c);
-        }
-    }
-    return o + "\"";
-}
-
-std::string n(double v) {
-    if (!std::isfinite(v)) return "null";
-    char buf[40];
-    std::snprintf(buf, sizeof buf, "%.12g", v);
-    return buf;
-}
+// The JSON writers' own string and number forms, so every JSON file escapes and rounds alike.
+std::string q(std::string_view s) { return report::json_string(s); }
+std::string n(double v) { return report::json_number(v); }
 
 const char* side_name(Side s) {
     switch (s) {
