@@ -45,7 +45,16 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
     }
     // Printing and parsing again gives the same text: the printer's parentheses keep the meaning.
     const std::string printed = expr::to_string(*e);
-    if (expr::to_string(*expr::parse(printed)) != printed) std::abort();
+    expr::Ptr again;
+    try {
+        again = expr::parse(printed);
+    } catch (const TextError& err) {
+        // The printer adds parentheses ("- -x" prints as "-(-x)"), so input near the nesting limit may print
+        // beyond it; that refusal is the parser's limit at work, not a finding.
+        if (std::string_view(err.what()).find("nested too deeply") == std::string_view::npos) std::abort();
+        return 0;
+    }
+    if (expr::to_string(*again) != printed) std::abort();
     (void)expr::identifiers(*e);
     (void)expr::evaluate(*e, [](std::string_view) { return 1.5; });
     return 0;
