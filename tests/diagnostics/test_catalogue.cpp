@@ -8,6 +8,7 @@
 #include <vector>
 
 #include "core/diagnostic.hpp"
+#include "diagnose.hpp"
 #include "input/load.hpp"
 
 namespace {
@@ -288,13 +289,7 @@ std::string replace_all(std::string s, const std::string& from, const std::strin
 
 // Runs the loader on a file and returns its diagnostics (empty if it loaded).
 std::vector<Diagnostic> diagnose(const std::string& path, bool regimen) {
-    try {
-        if (regimen) plateau::input::load_regimen(path, kModelDirs);
-        else plateau::input::load_model(path);
-    } catch (const InputError& e) {
-        return e.diagnostics();
-    }
-    return {};
+    return plateau::test::diagnose(path, regimen, kModelDirs);
 }
 
 std::string first_line(const Diagnostic& d, const std::string& dir) {

@@ -15,6 +15,7 @@
 #include "cli/commands.hpp"
 #include "core/diagnostic.hpp"
 #include "expr/expr.hpp"
+#include "diagnose.hpp"
 #include "input/load.hpp"
 #include "units/units.hpp"
 
@@ -30,13 +31,7 @@ const std::string kLimits = kTests + "/diagnostics/limits/";
 const std::vector<std::string> kModelDirs{kTests + "/data/models"};
 
 std::vector<Diagnostic> diagnose(const std::string& path, bool regimen) {
-    try {
-        if (regimen) plateau::input::load_regimen(path, kModelDirs);
-        else plateau::input::load_model(path);
-    } catch (const InputError& e) {
-        return e.diagnostics();
-    }
-    return {};
+    return plateau::test::diagnose(path, regimen, kModelDirs);
 }
 
 std::string first_line(const Diagnostic& d, const std::string& dir) {
