@@ -5,6 +5,7 @@
 
 #include "input/load.hpp"
 #include "input/loaders.hpp"
+#include "ops/table.hpp"
 
 namespace plateau::input {
 
@@ -12,7 +13,12 @@ namespace detail {
 
 namespace {
 
-const std::vector<std::string> kReserved{"t", "exp", "log", "sqrt"};
+// `t` and the function names of ops/list.hpp.
+const std::vector<std::string> kReserved = [] {
+    std::vector<std::string> v{"t"};
+    for (auto& name : ops::function_names()) v.push_back(std::move(name));
+    return v;
+}();
 
 // Names shared by parameters, compartments and outputs.
 class Names {
