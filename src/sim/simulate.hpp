@@ -25,6 +25,8 @@ struct Options {
     // step control's scale N is at least dose_floor × the largest dose. false follows every amount down.
     bool empty_decayed = true;
     double dose_floor = 1e-30;
+    // Sensitivity runs (sim/sensitivity.cpp): number of sensitivity states per compartment, after the amounts.
+    int sensitivities = 0;
 };
 
 // The step budget of a simulation: max_steps, lowered so that the kept polynomials fit in max_bytes.
