@@ -163,9 +163,11 @@ Result run(const std::vector<regimen::Regimen>& regimens, const Setup& setup) {
     result.bands.assign(regimens.size(), std::vector<float>(n * static_cast<std::size_t>(setup.band_points)));
     std::vector<metrics::Request> requests;
     std::vector<std::vector<double>> base;
-    const taylor::Tape tape = sim::model_tape(m);   // once per model
+    const taylor::Tape tape = sim::model_tape(m);   // once per model (the steady-state solve uses it too)
+    sim::Options with_tape = setup.options;
+    with_tape.tape = &tape;
     for (const auto& r : regimens) {
-        requests.push_back(metrics::request_from(r, setup.options));
+        requests.push_back(metrics::request_from(r, with_tape));
         base.push_back(r.parameter_values());
         std::vector<double> t(static_cast<std::size_t>(setup.band_points));
         for (std::size_t k = 0; k < t.size(); ++k)
