@@ -20,7 +20,7 @@ struct Loaded {
 
 inline Loaded load(const std::string& regimen_path, const std::string& levels_path) {
     Loaded l;
-    l.regimen = input::load_regimen(regimen_path, {});
+    l.regimen = input::load_regimen(regimen_path, input::default_model_dirs());
     const model::Model& m = l.regimen.model;
     l.levels = input::load_levels(levels_path, m, m.residual ? m.residual->output : 0, fit::level_context(l.regimen));
     return l;

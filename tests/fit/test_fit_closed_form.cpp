@@ -134,3 +134,22 @@ TEST_CASE("fit: parameter derivatives in η through each spread and a derived pa
             CHECK(jac[i * n + k] == Approx((a[i] - b[i]) / 2e-6).epsilon(1e-7).margin(1e-12));
     }
 }
+
+TEST_CASE("fit: a derived parameter of a varied one, itself varied, differentiates by the chain rule", "[fit]") {
+    // k = cl/v·exp(η_k) with cl = cl0·exp(η_cl): ∂k/∂η_cl = k, ∂k/∂η_k = k (computed from the closed form).
+    const std::string dir = std::string(PLATEAU_TEST_DIR) + "/fit/data/";
+    const model::Model m = input::load_model(dir + "derived-varied.toml");
+    std::vector<double> base = m.default_values();
+    const std::vector<double> eta{0.3, -0.2, 0.1};
+    const std::vector<double> jac = fit::parameter_jacobian(m, base, eta);
+    std::vector<double> at = base;
+    model::individualize(m, at, eta);
+    const auto k = static_cast<std::size_t>(m.parameter_index("k"));
+    const auto h = static_cast<std::size_t>(m.parameter_index("half"));
+    CHECK(jac[k * 3 + 0] == Approx(at[k]).epsilon(1e-14));
+    CHECK(jac[k * 3 + 1] == Approx(at[k]).epsilon(1e-14));
+    CHECK(jac[k * 3 + 2] == 0.0);
+    // half = ln 2 / k + shift (shift normal): ∂half/∂η_cl = −ln2/k, ∂half/∂η_shift = 1 (computed from the closed form).
+    CHECK(jac[h * 3 + 0] == Approx(-std::log(2.0) / at[k]).epsilon(1e-13));
+    CHECK(jac[h * 3 + 2] == Approx(1.0).epsilon(1e-15));
+}
