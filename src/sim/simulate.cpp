@@ -147,11 +147,23 @@ Simulation integrate_events(const model::Model& m, taylor::Stepper& stepper, con
         double f;
         ~Restore() { s.set_floor(f); }
     } restore{stepper, saved_floor};
+    // A sensitivity run's extra states are not amounts: its balance is not checked (the plain run's is).
+    MassBalance balance(stepper.expander(), x0, opt.tol, opt.check_mass && opt.sensitivities == 0);
+    // At each dose time (before its doses) and at the end: a linear model's run out of balance stops here.
+    auto balanced = [&](double at) {
+        if (balance.check(at, x, sim.steps, sim.mass)) return true;
+        sim.outcome = taylor::Outcome::MassBalance;
+        sim.failed_at = sim.mass.time;
+        sim.failed_state = sim.mass.compartment;
+        return false;
+    };
     double t = 0.0;
     std::size_t next = 0;
     while (true) {
+        if (t > 0.0 && !balanced(t)) return sim;
         // Apply every event due now (events before 0 are applied at 0).
         while (next < events.size() && !regimen::before(t, events[next].time)) {
+            balance.add_bolus(events[next].bolus);
             for (std::size_t c = 0; c < nx; ++c) {
                 x[c] += events[next].bolus[c];
                 u[c] += events[next].rate_change[c];
@@ -200,6 +212,7 @@ Simulation integrate_events(const model::Model& m, taylor::Stepper& stepper, con
                 lands = false;
             }
             sim.trajectory.append(t, h, coeffs);
+            balance.add_step(coeffs, stride, static_cast<std::size_t>(stepper.n_series()), h, u);
             ++sim.steps;
             double largest = 0.0;
             for (std::size_t c = 0; c < nx; ++c) {
