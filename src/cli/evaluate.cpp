@@ -148,6 +148,18 @@ report::Candidate evaluate(regimen::Regimen r, const sim::Options& opt,
                    "' (" + rate.pos.file + ":" + std::to_string(rate.pos.line) + ":" + std::to_string(rate.pos.col) +
                    ") takes mass out of it while it is empty. Make the loss vanish with the amount (a factor of '" +
                    name + "' or of a concentration of it), and check the parameter units and signs";
+        } else if (c.sim.outcome == taylor::Outcome::MassBalance && c.sim.failed_state >= 0) {
+            const auto& m = c.regimen.model;
+            const sim::MassBalanceFailure& b = c.sim.mass;
+            const auto idx = static_cast<std::size_t>(b.compartment);
+            const auto& rate = m.rates[idx];
+            msg += "the mass balance does not hold: compartment '" + m.compartments[idx].name + "' holds " +
+                   num(b.held) + " mg, but its doses and the integral of its rate '" + rate.text + "' (" +
+                   rate.pos.file + ":" + std::to_string(rate.pos.line) + ":" + std::to_string(rate.pos.col) +
+                   ") give " + num(b.expected) + " mg (off by " + num(b.held - b.expected) + " mg; the tolerance "
+                   "allows " + num(b.allowed) + " mg). Whole body: " + num(b.delivered) + " mg delivered, " +
+                   num(b.in_body) + " mg in the body, " + num(b.eliminated) + " mg eliminated. The run lost or "
+                   "created mass, so no figure is reported";
         } else
             msg += explain_nonfinite(c.regimen, c.sim);
         throw NumericalError(msg);

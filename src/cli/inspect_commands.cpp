@@ -8,6 +8,7 @@
 #include "cli/support.hpp"
 #include "core/diagnostic.hpp"
 #include "core/suggest.hpp"
+#include "fit/residual.hpp"
 #include "input/load.hpp"
 #include "input/load_cohort.hpp"
 #include "report/caution.hpp"
@@ -33,7 +34,8 @@ int check_command(const CheckOptions& opt, std::ostream& out, std::ostream& err)
                 input::check_model_file_name(f, m);
                 out << f << ": ok (model " << quoted(m.id) << ", " << plural(m.parameters.size(), "parameter") << ", "
                     << plural(m.compartments.size(), "compartment") << ", " << plural(m.outputs.size(), "output")
-                    << ", " << plural(m.routes.size(), "route") << ")\n";
+                    << ", " << plural(m.routes.size(), "route")
+                    << (m.residual ? ", residual error " + fit::residual_text(m) : std::string()) << ")\n";
                 return kExitOk;
             }
             if (kind == "regimen") {
@@ -108,6 +110,7 @@ void print_model(std::ostream& out, const model::Model& m) {
         rows.push_back({v.name, v.text, std::string(kind) + ", ω = " + num(v.omega, 4) + (corr.empty() ? "" : "; " + corr)});
     }
     if (!rows.empty()) out << "\nbetween-subject variability\n" << format_table(rows, 2);
+    if (m.residual) out << "\nresidual error of measured levels\n  " << fit::residual_text(m) << "\n";
 
     rows.clear();
     for (const auto& c : m.compartments) rows.push_back({c.name, c.unit_text});

@@ -20,8 +20,8 @@ const model::Output& output_of(const regimen::Regimen& r) {
     return r.model.outputs[static_cast<std::size_t>(i)];
 }
 
-bool all_met(const std::vector<report::Verdict>& vs) {
-    return std::all_of(vs.begin(), vs.end(), [](const report::Verdict& v) { return v.met == true; });
+bool all_met(const std::vector<verdict::Verdict>& vs) {
+    return std::all_of(vs.begin(), vs.end(), [](const verdict::Verdict& v) { return v.met == true; });
 }
 
 // One candidate shape. Figures are cached per dose: one simulation answers every goal.
@@ -197,7 +197,7 @@ private:
                                                                      : std::string("the regimen does not repeat"));
                 f.exact = f.dose = start;
                 f.at = c;
-                f.verdicts = report::verdicts(c.regimen.targets, output_of(c.regimen), c.exposure);
+                f.verdicts = verdict::verdicts(c.regimen.targets, output_of(c.regimen), c.exposure);
             }
         }
         return false;
@@ -207,7 +207,7 @@ private:
         f.exact = exact;
         f.dose = dose;
         f.at = m_(variant(t_, s_, dose));
-        f.verdicts = report::verdicts(f.at->regimen.targets, output_of(f.at->regimen), f.at->exposure);
+        f.verdicts = verdict::verdicts(f.at->regimen.targets, output_of(f.at->regimen), f.at->exposure);
         return f;
     }
 

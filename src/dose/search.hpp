@@ -12,7 +12,7 @@
 #include "dose/shape.hpp"
 #include "dose/solve.hpp"
 #include "report/compare.hpp"
-#include "report/targets.hpp"
+#include "verdict/verdicts.hpp"
 
 namespace plateau::dose {
 
@@ -50,7 +50,7 @@ struct Found {
     std::string deciding;                 // label of the goal that set the dose
     std::string message;                  // plain words for anything but Meets
     std::optional<report::Candidate> at;  // measured at `dose` (absent when nothing could be measured)
-    std::vector<report::Verdict> verdicts;
+    std::vector<verdict::Verdict> verdicts;
     std::optional<Loading> loading;
     double miss = 0.0;  // with an exact goal: |figure at `dose` − value| / value (rounding moves it)
     double daily() const { return dose * 24.0 / shape.tau; }

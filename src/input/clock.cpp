@@ -95,7 +95,7 @@ std::string start_clock_hint() {
 }
 
 bool daily_times(Ctx& c, const Value& entry, const std::optional<double>& start_clock, bool start_clock_written,
-                 regimen::DoseSpec& spec) {
+                 regimen::DoseSpec& spec, std::vector<SourcePos>* item_pos) {
     const Entry* times = entry.find("times");
     if (times == nullptr) return true;
     const Value& v = times->value;
@@ -120,7 +120,7 @@ bool daily_times(Ctx& c, const Value& entry, const std::optional<double>& start_
         else c.error(v.pos, "'times' is empty", expected);
         return false;
     }
-    std::vector<double> offsets;
+    std::vector<std::pair<double, SourcePos>> offsets;  // with the position of the clock time that gives it
     for (const Value& item : v.items) {
         auto ct = clock_time(c, item, "times", false);
         if (!ct) {
@@ -129,12 +129,12 @@ bool daily_times(Ctx& c, const Value& entry, const std::optional<double>& start_
         }
         if (!start_clock) continue;
         const double off = hours_from_start(*ct, *start_clock);
-        for (double o : offsets)
+        for (const auto& [o, where] : offsets)
             if (regimen::same_instant(o, off)) {
                 c.value_error(item, "'times' lists " + item.str + " twice", "each clock time once");
                 ok = false;
             }
-        offsets.push_back(off);
+        offsets.emplace_back(off, item.kind == Kind::String ? string_pos(c.doc, item, 0) : item.pos);
     }
     long days = 0;
     const Entry* d = entry.find("days");
@@ -153,11 +153,16 @@ bool daily_times(Ctx& c, const Value& entry, const std::optional<double>& start_
         days = static_cast<long>(d->value.integer);
     }
     if (!ok) return false;
-    std::sort(offsets.begin(), offsets.end());
+    std::stable_sort(offsets.begin(), offsets.end(), [](const auto& a, const auto& b) { return a.first < b.first; });
     spec.at = 0.0;
     spec.every = 24.0;
     spec.count = days;
-    spec.offsets = offsets;
+    spec.offsets.clear();
+    if (item_pos != nullptr) item_pos->clear();
+    for (const auto& [o, where] : offsets) {
+        spec.offsets.push_back(o);
+        if (item_pos != nullptr) item_pos->push_back(where);
+    }
     return true;
 }
 

@@ -32,8 +32,9 @@ std::string start_clock_hint();
 
 // Reads `times` and `days` of a [[doses]] entry into spec (every = 24 h, offsets from the start clock).
 // Returns false on error (reported; a malformed start_clock is reported where it is written, not here).
+// `item_pos`, when given, receives the position of the clock time behind each offset (in the offsets' order).
 bool daily_times(Ctx& c, const Value& entry, const std::optional<double>& start_clock, bool start_clock_written,
-                 regimen::DoseSpec& spec);
+                 regimen::DoseSpec& spec, std::vector<SourcePos>* item_pos = nullptr);
 
 // Reads `missed`, `late` and `doubled` of a [[doses]] entry whose doses are already known. Returns false on
 // error (reported).

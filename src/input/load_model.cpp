@@ -5,6 +5,8 @@
 
 #include "input/load.hpp"
 #include "input/loaders.hpp"
+#include "input/load_residual.hpp"
+#include "ops/table.hpp"
 
 namespace plateau::input {
 
@@ -12,7 +14,12 @@ namespace detail {
 
 namespace {
 
-const std::vector<std::string> kReserved{"t", "exp", "log", "sqrt"};
+// `t` and the function names of ops/list.hpp.
+const std::vector<std::string> kReserved = [] {
+    std::vector<std::string> v{"t"};
+    for (auto& name : ops::function_names()) v.push_back(std::move(name));
+    return v;
+}();
 
 // Names shared by parameters, compartments and outputs.
 class Names {
@@ -627,7 +634,7 @@ model::Model build_model(Ctx& c) {
         return m;
     }
     check_keys(c, root, {"id", "summary", "parameters", "covariates", "derived", "compartments", "rates", "outputs", "routes",
-                         "variability", "correlation"},
+                         "variability", "correlation", "residual"},
                "a model file");
     if (const Value* id = get_string(c, root, "id", true, "the model file", "id = \"<model name>\"")) {
         if (id->str.empty()) c.value_error(*id, "the model id is empty", "a name, like \"one-compartment-iv\"");
@@ -650,6 +657,7 @@ model::Model build_model(Ctx& c) {
     load_outputs(c, root, names, scope, m);
     load_routes(c, root, parameter_scope(m, broken, declared), names, m);
     load_variability(c, root, m, broken);
+    load_residual(c, root, m);
     add_dimension_notes(c);
     return m;
 }

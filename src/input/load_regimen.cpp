@@ -21,11 +21,25 @@ using units::kTime;
 const std::vector<std::string> kDoseKeys{"route",   "amount", "at",     "every", "count", "until",  "over",
                                          "rate",    "times",  "days",   "missed", "late", "doubled"};
 
+// Where the values of a [[doses]] entry are written, so that a warning points at the key behind it (the
+// entry's header when the key is absent).
+struct DoseKeys {
+    SourcePos at, every, over;       // `over` or `rate`, whichever gives the infusion length
+    std::vector<SourcePos> times;    // the clock times, in the order of spec.offsets
+};
+
 struct DoseEntry {
     regimen::DoseSpec spec;
     bool ok = false;
     int number = 0;   // 1-based position among the [[doses]] entries
+    DoseKeys keys;
 };
+
+// The position of a value as errors give it: inside the quotes for a string.
+SourcePos value_pos(const Document& doc, const Value* v, const SourcePos& absent) {
+    if (v == nullptr) return absent;
+    return v->kind == Kind::String ? string_pos(doc, *v, 0) : v->pos;
+}
 
 std::string entry_name(const DoseEntry& d) {
     std::string s = "[[doses]] entry " + std::to_string(d.number);
@@ -178,7 +192,7 @@ DoseEntry parse_dose(Ctx& c, const Value& t, int number, const model::Model* m, 
     // How the series is given.
     const bool daily = t.find("times") != nullptr;
     if (daily) {
-        if (!typo && !daily_times(c, t, start_clock, start_clock_written, d.spec)) ok = false;
+        if (!typo && !daily_times(c, t, start_clock, start_clock_written, d.spec, &d.keys.times)) ok = false;
     } else if (const Entry* days = t.find("days")) {
         c.error(days->key_pos, "'days' needs 'times'", "times = [\"08:00\", \"20:00\"] with days = <number of days>, "
                 "or count = <number of doses> with every", 4);
@@ -226,6 +240,9 @@ DoseEntry parse_dose(Ctx& c, const Value& t, int number, const model::Model* m, 
         }
     }
 
+    d.keys.at = value_pos(c.doc, at.v, t.pos);
+    d.keys.every = value_pos(c.doc, every.v, t.pos);
+    d.keys.over = value_pos(c.doc, over.present ? over.v : rate.v, t.pos);
     if (ok) {
         d.spec.amount = amount.value;
         if (!daily) {
@@ -469,7 +486,7 @@ void check_schedule(Ctx& c, const std::vector<DoseEntry>& doses, const std::vect
             const regimen::DoseSpec& s = d.spec;
             const double last = last_time(s);
             if (regimen::before(last, h.until) && !regimen::before(last + lags[i], h.until)) {
-                warnings.push_back({s.pos, entry_name(d) + ": the route's lag (" + hours(lags[i]) + ") delays the last dose, at " +
+                warnings.push_back({value_pos(c.doc, until_v, s.pos), entry_name(d) + ": the route's lag (" + hours(lags[i]) + ") delays the last dose, at " +
                                                hours(last) + ", to the end of the horizon or later: it has no effect"});
                 continue;
             }
@@ -500,20 +517,22 @@ void check_schedule(Ctx& c, const std::vector<DoseEntry>& doses, const std::vect
 
 // Times the file writes as different but that are one instant to the engine, and infusions shorter than that
 // resolution (given as boluses): they run, but not quite as written, so the user is told.
-void resolution_warnings(regimen::Regimen& r) {
+void resolution_warnings(regimen::Regimen& r, const std::vector<DoseEntry>& entries) {
     struct Written {
         double t;
         std::size_t entry;
+        long n;   // dose number within its entry
     };
     std::vector<Written> times;
     for (std::size_t e = 0; e < r.doses.size(); ++e) {
         const auto& d = r.doses[e];
-        for (long n = 1; n <= d.doses(); ++n) times.push_back({d.dose_time(n), e});
+        for (long n = 1; n <= d.doses(); ++n) times.push_back({d.dose_time(n), e, n});
         if (d.over > 0.0 && !regimen::before(d.first_time(), d.first_time() + d.over))
-            r.warnings.push_back({d.pos, "[[doses]] entry " + std::to_string(e + 1) + ": the infusion lasts " + fmt(d.over) +
-                                             " h, shorter than the time resolution (" +
-                                             fmt(regimen::instant_tolerance(d.first_time())) +
-                                             " h): each dose is given as a bolus"});
+            r.warnings.push_back({entries[e].keys.over,
+                                  "[[doses]] entry " + std::to_string(e + 1) + ": the infusion lasts " + fmt(d.over) +
+                                      " h, shorter than the time resolution (" +
+                                      fmt(regimen::instant_tolerance(d.first_time())) +
+                                      " h): each dose is given as a bolus"});
     }
     std::sort(times.begin(), times.end(), [](const Written& a, const Written& b) { return a.t < b.t; });
     for (std::size_t i = 1; i < times.size(); ++i) {
@@ -521,14 +540,24 @@ void resolution_warnings(regimen::Regimen& r) {
         if (a.t == b.t || !regimen::same_instant(a.t, b.t)) continue;
         char buf[96];
         std::snprintf(buf, sizeof buf, "doses at %.12g h and %.12g h", a.t, b.t);
-        r.warnings.push_back({r.doses[b.entry].pos, std::string(buf) +
+        // The key that puts the later dose there: a clock time of a daily pattern, 'every' for a dose of a series
+        // too close to the one before it in the same series, 'at' otherwise.
+        const DoseKeys& k = entries[b.entry].keys;
+        const regimen::DoseSpec& bs = r.doses[b.entry];
+        const std::size_t per = bs.offsets.size();
+        const SourcePos where = !k.times.empty()          ? k.times[static_cast<std::size_t>(b.n - 1) % per]
+                                : a.entry == b.entry && b.n > 1 ? k.every
+                                                                : k.at;
+        r.warnings.push_back({where, std::string(buf) +
                                                         " are closer than the time resolution (" + fmt(regimen::kInstantRelative) +
                                                         " of the time, at least " + fmt(regimen::kInstantRelative) +
                                                         " h) and are given at one instant"});
         break;  // one is enough to point at the problem
     }
     std::stable_sort(r.warnings.begin(), r.warnings.end(),
-                     [](const regimen::Warning& a, const regimen::Warning& b) { return a.pos.line < b.pos.line; });
+                     [](const regimen::Warning& a, const regimen::Warning& b) {
+                         return a.pos.line != b.pos.line ? a.pos.line < b.pos.line : a.pos.col < b.pos.col;
+                     });
 }
 
 }  // namespace
@@ -619,7 +648,7 @@ regimen::Regimen load_regimen(const std::string& path, const std::vector<std::st
         check_schedule(c, doses, entry_lags(doses, m, r), r.horizon, until_v, step_v, root, r.warnings);
     for (auto& d : doses) r.doses.push_back(d.spec);
     if (doses_ok && m != nullptr) resolve_per_size(c, r);
-    if (sink.empty()) resolution_warnings(r);
+    if (sink.empty()) resolution_warnings(r, doses);
 
     throw_sorted(sink, path);
     return r;

@@ -80,6 +80,17 @@ struct Variability {
     SourcePos pos;
 };
 
+// The residual error of measured levels of one output (an individual fit's likelihood): a level y is normal
+// around the prediction f with variance σ² = additive² + (proportional·f)².
+struct Residual {
+    int output = -1;               // output index the levels measure
+    double additive = 0.0;         // canonical unit of the output; 0 = none
+    double proportional = 0.0;     // fraction of the prediction; 0 = none
+    std::string additive_text;     // as written ("0.2 mg/L"), for display
+    std::string proportional_text; // as written ("15 %")
+    SourcePos pos;                 // the [residual] table
+};
+
 struct Model {
     std::string id;
     std::string summary;
@@ -91,6 +102,7 @@ struct Model {
     std::vector<Route> routes;
     std::vector<Variability> variability;   // in file order
     std::vector<double> correlation;        // variability.size()² row-major; empty = independent
+    std::optional<Residual> residual;       // [residual]; absent: the model cannot be fitted to levels
 
     int parameter_index(std::string_view name) const;
     int compartment_index(std::string_view name) const;

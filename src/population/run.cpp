@@ -11,7 +11,7 @@
 #include "metrics/exposure.hpp"
 #include "metrics/level.hpp"
 #include "population/draw.hpp"
-#include "report/targets.hpp"
+#include "verdict/verdicts.hpp"
 #include "taylor/stepper.hpp"
 
 namespace plateau::population {
@@ -60,7 +60,7 @@ struct Worker {
     Figures measure(std::size_t r, const regimen::Regimen& w, taylor::Stepper& stepper, std::size_t i) const {
         Figures f;
         const metrics::Request& req = requests[r];
-        const int n_targets = static_cast<int>(report::verdicts(w.targets, w.model.outputs[static_cast<std::size_t>(req.output)],
+        const int n_targets = static_cast<int>(verdict::verdicts(w.targets, w.model.outputs[static_cast<std::size_t>(req.output)],
                                                                 metrics::Exposure{})
                                                    .size());
         f.met.assign(static_cast<std::size_t>(n_targets), -1);
@@ -87,7 +87,7 @@ struct Worker {
                 band[k] = static_cast<float>(s.trajectory.value(series, times[static_cast<std::size_t>(k)]));
             f.first_peak = e.intervals.empty() ? e.peak.value : e.intervals.front().peak.value;
             f.first_reached = e.first_reached ? *e.first_reached : kNaN;
-            const auto verdicts = report::verdicts(w.targets, w.model.outputs[static_cast<std::size_t>(req.output)], e);
+            const auto verdicts = verdict::verdicts(w.targets, w.model.outputs[static_cast<std::size_t>(req.output)], e);
             for (std::size_t k = 0; k < verdicts.size(); ++k) f.met[k] = verdicts[k].met ? (*verdicts[k].met ? 1 : 0) : -1;
             if (e.steady && e.steady->found) {
                 const metrics::Steady& st = *e.steady;
@@ -169,9 +169,11 @@ Result run(const std::vector<regimen::Regimen>& regimens, const Setup& setup) {
     result.bands.assign(regimens.size(), std::vector<float>(n * static_cast<std::size_t>(setup.band_points)));
     std::vector<metrics::Request> requests;
     std::vector<std::vector<double>> base;
-    const taylor::Tape tape = sim::model_tape(m);   // once per model
+    const taylor::Tape tape = sim::model_tape(m);   // once per model (the steady-state solve uses it too)
+    sim::Options with_tape = setup.options;
+    with_tape.tape = &tape;
     for (const auto& r : regimens) {
-        requests.push_back(metrics::request_from(r, setup.options));
+        requests.push_back(metrics::request_from(r, with_tape));
         base.push_back(r.parameter_values());
         std::vector<double> t(static_cast<std::size_t>(setup.band_points));
         for (std::size_t k = 0; k < t.size(); ++k)

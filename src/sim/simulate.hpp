@@ -9,6 +9,7 @@
 #include "model/model.hpp"
 #include "regimen/regimen.hpp"
 #include "sim/events.hpp"
+#include "sim/mass_balance.hpp"
 #include "taylor/stepper.hpp"
 #include "taylor/tape.hpp"
 #include "trajectory/trajectory.hpp"
@@ -25,6 +26,14 @@ struct Options {
     // step control's scale N is at least dose_floor × the largest dose. false follows every amount down.
     bool empty_decayed = true;
     double dose_floor = 1e-30;
+    // Linear models: the mass balance of every compartment is checked at each dose time and at the end
+    // (sim/mass_balance.hpp); a run out of balance ends with Outcome::MassBalance.
+    bool check_mass = true;
+    // The model's tape (model_tape), when the caller has built it: the steady-state solve then does not build
+    // it again (a population builds it once per model). Must be the tape of the model being simulated.
+    const taylor::Tape* tape = nullptr;
+    // Sensitivity runs (sim/sensitivity.cpp): number of sensitivity states per compartment, after the amounts.
+    int sensitivities = 0;
 };
 
 // The step budget of a simulation: max_steps, lowered so that the kept polynomials fit in max_bytes.
@@ -44,6 +53,7 @@ struct Simulation {
     taylor::Outcome outcome = taylor::Outcome::Ok;
     double failed_at = 0.0;      // time of the failure when outcome != Ok
     int failed_state = -1;       // NegativeAmount: the compartment that went below zero
+    MassBalanceFailure mass;     // MassBalance: what the check found
     bool projected = false;      // StepLimit declared early: the recent steps would need > 4 budgets
     // StepLimit with steps held by stability (linear models): the fastest compartment, its loss rate (1/h) and
     // the last free step (h). Empty when the steps were set by accuracy.

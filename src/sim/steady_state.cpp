@@ -66,7 +66,9 @@ PeriodicSolution solve_cycle(const model::Model& m, std::span<const double> para
     opt.tol = std::min(user_opt.tol, kSteadyStateTolerance);
     opt.order = 0;
     const std::size_t n = m.compartments.size();
-    taylor::Stepper stepper(model_tape(m), params, opt.tol, opt.order);
+    std::optional<taylor::Tape> built;
+    if (opt.tape == nullptr) built = model_tape(m);
+    taylor::Stepper stepper(opt.tape != nullptr ? *opt.tape : *built, params, opt.tol, opt.order);
     const std::vector<Event> events = cycle_events(m, params, c, true);
 
     bool failed = false;

@@ -68,6 +68,7 @@ const char* outcome_name(Outcome o) {
         case Outcome::NonFinite: return "non-finite state";
         case Outcome::StepLimit: return "step limit reached";
         case Outcome::NegativeAmount: return "negative amount";
+        case Outcome::MassBalance: return "mass balance";
     }
     return "?";
 }

@@ -17,7 +17,7 @@ int order_for_tolerance(double tol);
 // ρ_j = (‖x[1]‖∞/‖x[j]‖∞)^{1/(j−1)} (relative to the linear growth), and N = 1 if that is zero too. Returns +infinity when both coefficients vanish (the series is then a polynomial of lower degree).
 double jorba_zou_step(std::span<const double> coeffs, int n_series, int order);
 
-enum class Outcome { Ok, NonFinite, StepLimit, NegativeAmount };
+enum class Outcome { Ok, NonFinite, StepLimit, NegativeAmount, MassBalance };
 
 const char* outcome_name(Outcome o);
 

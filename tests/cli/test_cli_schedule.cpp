@@ -93,9 +93,9 @@ at = "20 h"
 )");
     REQUIRE(r.code == cli::kExitOk);
     INFO(r.err);
-    CHECK(contains(r.err, "resolution.toml:15:1: warning: [[doses]] entry 3: the infusion lasts 6e-09 h, shorter than "
+    CHECK(contains(r.err, "resolution.toml:18:9: warning: [[doses]] entry 3: the infusion lasts 6e-09 h, shorter than "
                           "the time resolution (2e-08 h): each dose is given as a bolus"));
-    CHECK(contains(r.err, "resolution.toml:11:1: warning: doses at 10 h and 10.000000005 h are closer than the time "
+    CHECK(contains(r.err, "resolution.toml:14:7: warning: doses at 10 h and 10.000000005 h are closer than the time "
                           "resolution"));
     // No dose is lost: 6200 mg in all (common practice, no source).
     CHECK(contains(r.out, "6200 mg in total"));

@@ -7,6 +7,7 @@
 #include "../support/temp_dir.hpp"
 
 #include <filesystem>
+#include <fstream>
 #include <optional>
 #include <sstream>
 #include <string>
@@ -212,4 +213,65 @@ TEST_CASE("input: a model path in a regimen reads only model files and never ech
         CHECK(shown.find("do-not-print") == std::string::npos);
         CHECK(shown.find("PATH=") == std::string::npos);
     }
+}
+
+TEST_CASE("fuzz: every kept fuzz input runs cleanly through what its target checks", "[input][diagnostics][limits]") {
+    // fuzz/regressions/<target>-*: inputs that once made a fuzz target fail. Each must now give its target's
+    // clean answer: a located error or a result, never a crash or another exception.
+    const fs::path dir = fs::path(PLATEAU_SOURCE_DIR) / "fuzz" / "regressions";
+    std::size_t seen = 0;
+    for (const auto& e : fs::directory_iterator(dir)) {
+        const std::string name = e.path().filename().string();
+        INFO("fuzz/regressions/" << name);
+        std::ifstream in(e.path(), std::ios::binary);
+        std::stringstream ss;
+        ss << in.rdbuf();
+        const std::string text = ss.str();
+        ++seen;
+        if (name.rfind("expr-", 0) == 0) {
+            // Parses; its printed form parses back to the same text, or is refused at the nesting limit.
+            plateau::expr::Ptr p;
+            try {
+                p = plateau::expr::parse(text);
+            } catch (const plateau::TextError& err) {
+                CHECK(err.offset() <= text.size());
+                continue;
+            }
+            const std::string printed = plateau::expr::to_string(*p);
+            std::string again, refused;
+            try {
+                again = plateau::expr::to_string(*plateau::expr::parse(printed));
+            } catch (const plateau::TextError& err) {
+                refused = err.what();
+            }
+            if (refused.empty()) CHECK(again == printed);
+            else CHECK(refused == "expression nested too deeply (more than 200 levels)");
+        } else if (name.rfind("unit-", 0) == 0) {
+            try {
+                (void)plateau::units::parse_quantity(text);
+            } catch (const plateau::TextError& err) {
+                CHECK(err.offset() <= text.size());
+            }
+        } else {
+            const bool regimen = name.rfind("regimen-", 0) == 0;
+            REQUIRE((regimen || name.rfind("model-", 0) == 0));
+            TempDir tmp("regression");
+            for (const Diagnostic& d : diagnose(tmp.write("input.toml", text), regimen)) CHECK(d.pos.line >= 1);
+        }
+    }
+    CHECK(seen >= 1);
+}
+
+TEST_CASE("fuzz: the expression whose printed form nests past the limit parses, and its print is refused there",
+          "[expr][limits]") {
+    // fuzz/regressions/expr-deep-unary-prints-deeper: 127 signs in a row parse (under 200 levels); printed with
+    // a parenthesis per sign, the text nests past 200 and is refused at the limit, not misread.
+    std::ifstream in(fs::path(PLATEAU_SOURCE_DIR) / "fuzz" / "regressions" / "expr-deep-unary-prints-deeper");
+    std::stringstream ss;
+    ss << in.rdbuf();
+    const plateau::expr::Ptr p = plateau::expr::parse(ss.str());
+    REQUIRE(p);
+    const std::string printed = plateau::expr::to_string(*p);
+    CHECK(printed.size() > ss.str().size());
+    CHECK_THROWS_WITH(plateau::expr::parse(printed), "expression nested too deeply (more than 200 levels)");
 }

@@ -137,11 +137,11 @@ Case generate(Rng& rng) {
             c.linear = true;
             break;
         default:
-            // Saturable elimination: km stays at 1e-3 mg/L or more here; far smaller km gives negative amounts
-            // (see the hidden case at the end of this file).
+            // Saturable elimination, from near zero order (km 1e-12 mg/L: the amount reaches zero inside a step,
+            // which the engine lands on) to nearly linear.
             c.model = "one-compartment-mm-iv";
             c.overrides = {{"vmax", num(20 * rng.log_uniform(0.05, 20)) + " mg/h"},
-                           {"km", num(rng.log_uniform(1e-3, 100)) + " mg/L"},
+                           {"km", num(rng.log_uniform(1e-12, 100)) + " mg/L"},
                            {"v", num(40 * rng.log_uniform(0.1, 10)) + " L"}};
             c.amounts = {"central_mg"};
             break;
