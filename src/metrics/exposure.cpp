@@ -20,7 +20,9 @@ Levels levels_for(const Sweep& sw, const Request& req) {
     Levels lv;
     if (req.above) lv.above = sweep_level(sw, *req.above);
     if (req.window) {
-        lv.low = sweep_level(sw, req.window->first);
+        // A window whose low bound is the threshold (the usual case) shares its sweep.
+        if (lv.above && *req.above == req.window->first) lv.low = lv.above;
+        else lv.low = sweep_level(sw, req.window->first);
         lv.high = sweep_level(sw, req.window->second);
     }
     return lv;
@@ -56,7 +58,7 @@ std::optional<double> settled_from(const Sweep& sw, double start, double end, do
     if (last < low || last > high) return std::nullopt;
     double t = start;
     for (double bound : {low, high})
-        if (const auto c = last_crossing(sweep_level(sw, bound), start, end)) t = std::max(t, *c);
+        if (const auto c = last_crossing(sw, bound, start, end)) t = std::max(t, *c);
     return t;
 }
 

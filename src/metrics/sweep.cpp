@@ -126,17 +126,20 @@ Extreme minimum(const Sweep& sw, double a, double b) {
     return extreme(sw, a, b, [](double v, double best) { return v < best; });
 }
 
-LevelSweep sweep_level(const Sweep& sw, double c) {
+namespace {
+
+// The level sweep over the steps from `first` on (the window [t0[first], end]).
+LevelSweep sweep_from(const Sweep& sw, double c, std::size_t first) {
     LevelSweep lv;
     lv.level = c;
     const std::size_t n = sw.steps();
-    if (n == 0) return lv;
-    const double a = sw.t0.front(), b = sw.t0.back();
+    if (first >= n) return lv;
+    const double a = sw.t0[first], b = sw.t0.back();
     if (!(b > a)) return lv;
     // Roots as Trajectory::level_roots finds them over [a, b]: inside each step (after the O(d) bound in
     // roots_in), and on a boundary where the series is continuous and meets the level.
     std::vector<double> roots;
-    for (std::size_t k = 0; k < n; ++k) {
+    for (std::size_t k = first; k < n; ++k) {
         const double t0 = sw.t0[k];
         const auto p = poly_of(sw, k);
         for (double tau : traj::roots_in(p, c, sw.h[k])) {
@@ -157,13 +160,14 @@ LevelSweep sweep_level(const Sweep& sw, double c) {
                             [](double x, double y) { return y - x <= 1e-12 * std::max(1.0, std::abs(y)); }),
                 roots.end());
     // The cuts: every step boundary (the ends included) and every root, in order, each once.
-    lv.cuts.reserve(n + 1 + roots.size());
-    std::merge(sw.t0.begin(), sw.t0.end(), roots.begin(), roots.end(), std::back_inserter(lv.cuts));
+    lv.cuts.reserve(n + 1 - first + roots.size());
+    std::merge(sw.t0.begin() + static_cast<std::ptrdiff_t>(first), sw.t0.end(), roots.begin(), roots.end(),
+               std::back_inserter(lv.cuts));
     lv.cuts.erase(std::unique(lv.cuts.begin(), lv.cuts.end()), lv.cuts.end());
     lv.above.reserve(lv.cuts.size());
     // Each piece classified at its midpoint, as level() does.
     int prev = 0;
-    std::size_t k = 0;
+    std::size_t k = first;
     for (std::size_t i = 0; i + 1 < lv.cuts.size(); ++i) {
         const double lo = lv.cuts[i], hi = lv.cuts[i + 1];
         const double mid = 0.5 * (lo + hi);
@@ -175,6 +179,25 @@ LevelSweep sweep_level(const Sweep& sw, double c) {
         prev = state;
     }
     return lv;
+}
+
+}  // namespace
+
+LevelSweep sweep_level(const Sweep& sw, double c) { return sweep_from(sw, c, 0); }
+
+std::optional<double> last_crossing(const Sweep& sw, double c, double a, double b) {
+    if (sw.steps() == 0 || !(b > a)) return std::nullopt;
+    // Pieces, and so crossings, depend only on the steps around them: sweep the last m steps before b, and
+    // double m until a crossing after the suffix's first piece turns up or the suffix covers a. A series that
+    // has settled is then crossed near b or not at all, and most steps cost only the O(d) bound.
+    const std::size_t kb = step_at(sw, b), ka = step_at(sw, a);
+    for (std::size_t m = 16;; m *= 2) {
+        const std::size_t first = kb + 1 > ka + m ? kb + 1 - m : ka;
+        const LevelSweep lv = sweep_from(sw, c, first);
+        const double from = first > ka ? std::max(a, lv.cuts.size() > 1 ? lv.cuts[1] : sw.t0[first]) : a;
+        if (const auto t = last_crossing(lv, a, b); t && *t >= from) return t;
+        if (first == ka) return std::nullopt;
+    }
 }
 
 double hours_above(const LevelSweep& lv, double a, double b) {

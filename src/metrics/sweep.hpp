@@ -58,5 +58,8 @@ double hours_above(const LevelSweep& lv, double a, double b);
 std::vector<Crossing> crossings_in(const LevelSweep& lv, double a, double b);
 // The time of the last crossing strictly inside (a, b), if any.
 std::optional<double> last_crossing(const LevelSweep& lv, double a, double b);
+// The same without sweeping the whole trajectory: only as far back from b as the last crossing (what settling
+// asks: a series near its steady state crosses a band's bound, if at all, long before the end).
+std::optional<double> last_crossing(const Sweep& sw, double level, double a, double b);
 
 }  // namespace plateau::metrics

@@ -97,6 +97,10 @@ TEST_CASE("metrics: one-pass sweep equals the per-window figures on random traje
                 const auto last = metrics::last_crossing(lvs[i], a, b);
                 CHECK(last.has_value() == !ref.crossings.empty());
                 if (last) CHECK(*last == ref.crossings.back().time);
+                // The suffix search settling uses: the same last crossing without the whole sweep.
+                const auto back = metrics::last_crossing(sw, levels[i], a, b);
+                CHECK(back.has_value() == !ref.crossings.empty());
+                if (back) CHECK(*back == ref.crossings.back().time);
                 crossings_seen += static_cast<int>(cr.size());
             }
         }
