@@ -51,6 +51,8 @@ Sweep make_sweep(const traj::Trajectory& tr, int series) {
     sw.coef.reserve(n * stride);
     sw.left.reserve(n);
     sw.whole.reserve(n);
+    sw.end_value.reserve(n);
+    sw.spread.reserve(n);
     sw.crit_from.reserve(n + 1);
     traj::PolyBuffer buf;
     for (std::size_t k = 0; k < n; ++k) {
@@ -62,6 +64,13 @@ Sweep make_sweep(const traj::Trajectory& tr, int series) {
         sw.coef.insert(sw.coef.end(), p.begin(), p.end());
         // What Trajectory::integral adds for a step the window covers: ∫ from 0 to (t0 + h) − t0.
         sw.whole.push_back(traj::integral_from_zero(p, (t0 + h) - t0));
+        sw.end_value.push_back(traj::horner(p, (t0 + h) - t0));
+        double spread = 0.0, hk = 1.0;
+        for (std::size_t j = 1; j < p.size(); ++j) {
+            hk *= h;
+            spread += std::abs(p[j]) * hk;
+        }
+        sw.spread.push_back(spread);
         sw.crit_from.push_back(sw.crit_t.size());
         for (double tau : traj::critical_points_in(p, h)) {
             const double t = t0 + tau;
@@ -128,24 +137,42 @@ Extreme minimum(const Sweep& sw, double a, double b) {
 
 namespace {
 
-// The level sweep over the steps from `first` on (the window [t0[first], end]).
-LevelSweep sweep_from(const Sweep& sw, double c, std::size_t first) {
+// A step whose values all lie clearly on one side of the level needs neither root isolation nor a midpoint
+// evaluation: by the bound (most steps, O(1) here since the spread is kept per step), or because it is monotone
+// (no critical point) with both ends on that side. "Clearly" is a margin far above the rounding of the
+// evaluations and the round-off tolerances of roots_in and of the classification, so the answer is what
+// roots_in and the midpoint test would give. 1 above, −1 below, 0 not known.
+signed char known_side(const Sweep& sw, std::size_t k, double c) {
+    const double p0 = sw.poly(k)[0], d0 = p0 - c, sp = sw.spread[k];
+    const double margin = 1e-10 * (std::abs(c) + std::abs(p0) + sp);
+    const bool monotone = sw.crit_from[k] == sw.crit_from[k + 1];
+    const double d1 = sw.end_value[k] - c;
+    if (d0 - sp > margin || (monotone && std::min(d0, d1) > margin)) return 1;
+    if (-d0 - sp > margin || (monotone && std::max(d0, d1) < -margin)) return -1;
+    return 0;
+}
+
+// The level sweep over steps [first, last) (the window [t0[first], t0[last]]).
+LevelSweep sweep_from(const Sweep& sw, double c, std::size_t first, std::size_t last) {
     LevelSweep lv;
     lv.level = c;
-    const std::size_t n = sw.steps();
+    const std::size_t n = std::min(last, sw.steps());
     if (first >= n) return lv;
-    const double a = sw.t0[first], b = sw.t0.back();
+    const double a = sw.t0[first], b = sw.t0[n];
     if (!(b > a)) return lv;
     // Roots as Trajectory::level_roots finds them over [a, b]: inside each step (after the O(d) bound in
     // roots_in), and on a boundary where the series is continuous and meets the level.
+    std::vector<signed char> sure(n - first, 0);
     std::vector<double> roots;
     for (std::size_t k = first; k < n; ++k) {
         const double t0 = sw.t0[k];
         const auto p = poly_of(sw, k);
-        for (double tau : traj::roots_in(p, c, sw.h[k])) {
-            const double t = t0 + tau;
-            if (t > a && t < b) roots.push_back(t);
-        }
+        const signed char known = sure[k - first] = known_side(sw, k, c);
+        if (known == 0)
+            for (double tau : traj::roots_in(p, c, sw.h[k])) {
+                const double t = t0 + tau;
+                if (t > a && t < b) roots.push_back(t);
+            }
         if (k > 0 && t0 > a) {
             const double before = sw.left[k] - c;
             const double after = p[0] - c;
@@ -161,8 +188,8 @@ LevelSweep sweep_from(const Sweep& sw, double c, std::size_t first) {
                 roots.end());
     // The cuts: every step boundary (the ends included) and every root, in order, each once.
     lv.cuts.reserve(n + 1 - first + roots.size());
-    std::merge(sw.t0.begin() + static_cast<std::ptrdiff_t>(first), sw.t0.end(), roots.begin(), roots.end(),
-               std::back_inserter(lv.cuts));
+    std::merge(sw.t0.begin() + static_cast<std::ptrdiff_t>(first), sw.t0.begin() + static_cast<std::ptrdiff_t>(n + 1),
+               roots.begin(), roots.end(), std::back_inserter(lv.cuts));
     lv.cuts.erase(std::unique(lv.cuts.begin(), lv.cuts.end()), lv.cuts.end());
     lv.above.reserve(lv.cuts.size());
     // Each piece classified at its midpoint, as level() does.
@@ -172,7 +199,8 @@ LevelSweep sweep_from(const Sweep& sw, double c, std::size_t first) {
         const double lo = lv.cuts[i], hi = lv.cuts[i + 1];
         const double mid = 0.5 * (lo + hi);
         while (k + 1 < n && sw.t0[k + 1] <= mid) ++k;
-        int state = traj::horner(poly_of(sw, k), mid - sw.t0[k]) - c > 1e-12 * std::abs(c) ? 1 : -1;
+        int state = sure[k - first];
+        if (state == 0) state = traj::horner(poly_of(sw, k), mid - sw.t0[k]) - c > 1e-12 * std::abs(c) ? 1 : -1;
         if (prev != 0 && hi - lo < 1e-12 * std::max(1.0, std::abs(hi))) state = prev;
         lv.above.push_back(static_cast<signed char>(state));
         if (prev != 0 && state != prev) lv.crossings.push_back({lo, state == 1});
@@ -183,17 +211,23 @@ LevelSweep sweep_from(const Sweep& sw, double c, std::size_t first) {
 
 }  // namespace
 
-LevelSweep sweep_level(const Sweep& sw, double c) { return sweep_from(sw, c, 0); }
+LevelSweep sweep_level(const Sweep& sw, double c) { return sweep_from(sw, c, 0, sw.steps()); }
 
 std::optional<double> last_crossing(const Sweep& sw, double c, double a, double b) {
     if (sw.steps() == 0 || !(b > a)) return std::nullopt;
     // Pieces, and so crossings, depend only on the steps around them: sweep the last m steps before b, and
     // double m until a crossing after the suffix's first piece turns up or the suffix covers a. A series that
     // has settled is then crossed near b or not at all, and most steps cost only the O(d) bound.
-    const std::size_t kb = step_at(sw, b), ka = step_at(sw, a);
-    for (std::size_t m = 16;; m *= 2) {
+    const std::size_t ka = step_at(sw, a);
+    std::size_t kb = step_at(sw, b);
+    // Steps before b that all lie clearly on the same side of the level hold no crossing, nor do the
+    // boundaries between them: start the search where that run begins.
+    const std::size_t last = kb + 1;
+    if (const signed char side = known_side(sw, kb, c); side != 0)
+        while (kb > ka && known_side(sw, kb - 1, c) == side) --kb;
+    for (std::size_t m = 4;; m *= 2) {
         const std::size_t first = kb + 1 > ka + m ? kb + 1 - m : ka;
-        const LevelSweep lv = sweep_from(sw, c, first);
+        const LevelSweep lv = sweep_from(sw, c, first, last);
         const double from = first > ka ? std::max(a, lv.cuts.size() > 1 ? lv.cuts[1] : sw.t0[first]) : a;
         if (const auto t = last_crossing(lv, a, b); t && *t >= from) return t;
         if (first == ka) return std::nullopt;

@@ -26,6 +26,8 @@ struct Sweep {
     std::vector<double> coef;         // coefficients, step-major
     std::vector<double> left;         // value just before each step start (the previous step at its end)
     std::vector<double> whole;        // exact integral of each whole step
+    std::vector<double> end_value;    // value at each step's end
+    std::vector<double> spread;       // Σ_{k≥1} |c_k|·h^k: |p(τ) − p(0)| ≤ spread on the step (roots_in's bound)
     std::vector<std::size_t> crit_from;  // per step: its critical points in crit_t / crit_v (size steps + 1)
     std::vector<double> crit_t, crit_v;
 
