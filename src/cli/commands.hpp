@@ -99,6 +99,12 @@ struct DoseOptions {
     std::string json;                     // "" none, "-" standard output, else a file
     std::string write;                    // the recommended regimen as a regimen file
     std::vector<std::string> model_dirs;
+    // The population half: per candidate the smallest dose whose PTA reaches `pta` over virtual patients.
+    std::string pta;                      // "90%" or "0.9"; "" = one patient (the template's)
+    std::string cohort;                   // cohort file ("" = the template's patient, random effects only)
+    std::size_t size = 1000;
+    std::uint64_t seed = 1;
+    int threads = 1;
 };
 
 struct FitOptions {

@@ -209,11 +209,20 @@ static int plateau_main(int argc, char** argv) {
     dose->add_option("--tol", dose_opt.tol, "Integration tolerance, 1e-15 to 1e-3 (default 1e-10)")
         ->check(tolerance_validator())
         ->type_name("TOL");
+    dose->add_option("--pta", dose_opt.pta, "Per candidate the smallest dose whose PTA reaches this share, e.g. 90%")
+        ->type_name("SHARE");
+    dose->add_option("--cohort", dose_opt.cohort, "Virtual patients for --pta (default: the template's patient, "
+                                                  "random effects only)")->type_name("FILE");
+    dose->add_option("--size", dose_opt.size, "Virtual patients for --pta (default 1000)")->type_name("N");
+    dose->add_option("--seed", dose_opt.seed, "Seed of the virtual patients (default 1)")->type_name("S");
+    dose->add_option("--threads", dose_opt.threads, "Worker threads for --pta (default 1)")->type_name("N");
     add_targets(dose, dose_opt.targets);
     add_model_dirs(dose, dose_opt.model_dirs);
     dose->footer(footer("  plateau dose regimens/zelmarin-q8h-4h.toml --round 250mg\n"
                         "  plateau dose my-regimen.toml --intervals 6h,8h,12h --over 0.5h,4h --above 4mg/L --loading\n"
                         "  plateau dose my-regimen.toml --auc24 400 --round 250mg --write found.toml\n"
+                        "  plateau dose regimens/zelmarin-pop-q8h-4h.toml --cohort cohorts/zelmarin-adults.toml --pta 90% "
+                        "--round 250mg\n"
                         "--auc24 with one value asks for that AUC24 exactly; a range asks for a dose inside it."));
 
     cli::FitOptions fit_opt;
