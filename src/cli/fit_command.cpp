@@ -9,10 +9,10 @@
 #include "cli/commands.hpp"
 #include "cli/outputs.hpp"
 #include "cli/support.hpp"
+#include "fit/problem.hpp"
 #include "fit/report.hpp"
 #include "fit/write.hpp"
 #include "input/load_levels.hpp"
-#include "sim/schedule.hpp"
 
 namespace plateau::cli {
 
@@ -67,21 +67,8 @@ int fit_command(const FitOptions& opt, std::ostream& out, std::ostream& err) {
         if (m.variability.empty())
             throw UsageError("model " + cli::quoted(m.id) + " has no [variability] table: with no random effects there is "
                              "nothing to fit");
-        const sim::Schedule schedule = sim::make_schedule(r);
-        input::LevelContext lc;
-        lc.first_dose = schedule.first_dose();
-        lc.start_clock = r.start_clock;
-        const input::Levels levels = input::load_levels(opt.levels, m, m.residual->output, lc);
-
-        fit::Problem p;
-        p.model = &m;
-        p.base = r.parameter_values();
-        p.doses = schedule.doses;
-        p.output = m.residual->output;
-        p.residual = *m.residual;
-        for (const auto& l : levels.levels) p.obs.push_back({l.t, l.value, l.below});
-        p.t_end = std::max(r.horizon.until, levels.levels.back().t);
-        p.options.tol = opt.tol;
+        const input::Levels levels = input::load_levels(opt.levels, m, m.residual->output, fit::level_context(r));
+        const fit::Problem p = fit::make_problem(r, levels, opt.tol);
         const fit::Result res = fit::fit(p);
 
         fit::Band band;

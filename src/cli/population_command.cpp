@@ -82,8 +82,9 @@ int population_command(const PopulationOptions& opt, std::ostream& out, std::ost
         if (!opt.cohort.empty()) collect([&] { cohort = input::load_cohort(opt.cohort); });
         if (!opt.thresholds.empty()) collect([&] { dist = input::load_thresholds(opt.thresholds); });
         if (!problems.empty()) throw InputError(problems);
-        // The model files are inputs too: no output may replace one.
+        // The model files and a cohort's table of observed covariates are inputs too: no output may replace one.
         for (const auto& r : loaded) inputs.push_back(r.model.path);
+        if (!cohort.table_path.empty()) inputs.push_back(cohort.table_path);
         check_outputs(opt.json, opt.report, opt.plot, inputs, opt.csv);
         const auto& r0 = loaded.front();
         const auto& o0 = r0.model.outputs[static_cast<std::size_t>(output_of_target(r0))];

@@ -2,6 +2,7 @@
 // sim::output_sensitivities; ∂params/∂η from parameter_jacobian; the chain rule joins them.
 #include <boost/math/distributions/normal.hpp>
 #include <cmath>
+#include <stdexcept>
 
 #include "fit/fit.hpp"
 #include "fit/residual.hpp"
@@ -102,8 +103,14 @@ Evaluation evaluate(const Problem& p, const std::vector<double>& eta, bool deriv
                     break;
                 }
     }
-    const sim::OutputSensitivity s =
-        sim::output_sensitivities(m, values, p.doses, p.output, times, wrt, p.t_end, p.options);
+    // The forward sensitivities refuse (by name) a lag that varies in a nonlinear model: central differences
+    // of the engine stand in for that case.
+    sim::OutputSensitivity s;
+    try {
+        s = sim::output_sensitivities(m, values, p.doses, p.output, times, wrt, p.t_end, p.options);
+    } catch (const std::invalid_argument&) {
+        s = sim::output_sensitivities_fd(m, values, p.doses, p.output, times, wrt, p.t_end, p.options);
+    }
     if (s.outcome != taylor::Outcome::Ok) return ev;
     ev.f = s.value;
     for (double f : ev.f)

@@ -4,8 +4,9 @@
 // Step: (H + λ·diag(H)) δ = −g with g the exact gradient and H the Gauss–Newton Hessian (expected information
 // of each level's term, plus 2Ω⁻¹): H is positive definite, so δ descends for every λ ≥ 0. A step that lowers
 // the objective is taken and λ shrinks tenfold; otherwise λ grows tenfold and the step is tried again.
-// Stop (converged) when the Newton decrement gᵀH⁻¹g falls below 1e-14 or an accepted step moves no η by more
-// than 1e-10; give up after 200 iterations or when λ passes 1e16.
+// Near the optimum (decrement gᵀH⁻¹g below 1e-10) the objective changes by less than its rounding, so the
+// Gauss–Newton step (λ = 0) is taken without that test. Stop (converged) when the decrement falls below 1e-22
+// or a step moves no η by more than 1e-12; give up after 200 iterations or when λ passes 1e16.
 #include <Eigen/Dense>
 #include <algorithm>
 #include <cmath>
@@ -21,8 +22,9 @@ namespace plateau::fit {
 namespace {
 
 constexpr int kMaxIterations = 200;
-constexpr double kDecrement = 1e-14;
-constexpr double kStep = 1e-10;
+constexpr double kDecrement = 1e-22;
+constexpr double kNear = 1e-10;
+constexpr double kStep = 1e-12;
 
 Eigen::MatrixXd matrix(const std::vector<double>& a, std::size_t n) {
     Eigen::MatrixXd m(static_cast<Eigen::Index>(n), static_cast<Eigen::Index>(n));
@@ -51,9 +53,21 @@ Start descend(const Problem& p, std::vector<double> eta) {
         const Eigen::MatrixXd h = matrix(ev.hessian, n);
         const Eigen::VectorXd g = vec(ev.gradient);
         const Eigen::LDLT<Eigen::MatrixXd> full(h);
-        if (full.info() == Eigen::Success && g.dot(full.solve(g)) < kDecrement) {
+        const double decrement = full.info() == Eigen::Success ? g.dot(full.solve(g)) : INFINITY;
+        if (decrement < kDecrement) {
             s.converged = true;
             break;
+        }
+        if (decrement < kNear) {
+            const Eigen::VectorXd delta = full.solve(-g);
+            for (std::size_t k = 0; k < n; ++k) eta[k] += delta(static_cast<Eigen::Index>(k));
+            ev = evaluate(p, eta, true);
+            if (!ev.ok) break;
+            if (delta.cwiseAbs().maxCoeff() < kStep) {
+                s.converged = true;
+                break;
+            }
+            continue;
         }
         bool accepted = false;
         while (lambda <= 1e16) {
@@ -74,7 +88,7 @@ Start descend(const Problem& p, std::vector<double> eta) {
         }
         if (!accepted) {
             // No step lowers the objective any more: at the optimum to rounding, when the decrement is small.
-            s.converged = g.dot(full.solve(g)) < 1e-8;
+            s.converged = decrement < 1e-8;
             break;
         }
         ev = evaluate(p, eta, true);

@@ -1,11 +1,11 @@
 // A subject's parameter values as functions of the random effects, with exact first derivatives (forward mode:
 // each value carries its gradient in η). Follows model::individualize step by step: varied fixed parameters
 // first, then derived parameters in order, each then varied by its own random effect if it has one.
-// The derivative of a derived parameter's expression is taken here by forward-mode evaluation of the
-// expression tree (the symbolic derivative of the expression engine gives the same numbers).
+// A derived parameter's derivative comes from the symbolic derivative of its expression (expr::derivative).
 #include <cmath>
 #include <stdexcept>
 
+#include "expr/derivative.hpp"
 #include "fit/fit.hpp"
 
 namespace plateau::fit {
@@ -38,65 +38,23 @@ bool is_zero(const std::vector<double>& x) {
     return true;
 }
 
-Dual binary(expr::Op op, const Dual& a, const Dual& b) {
-    switch (op) {
-    case expr::Op::Add: return {a.v + b.v, combine(1.0, a.d, 1.0, b.d)};
-    case expr::Op::Sub: return {a.v - b.v, combine(1.0, a.d, -1.0, b.d)};
-    case expr::Op::Mul: return {a.v * b.v, combine(b.v, a.d, a.v, b.d)};
-    case expr::Op::Div: {
-        const double q = a.v / b.v;
-        return {q, combine(1.0 / b.v, a.d, -q / b.v, b.d)};
-    }
-    case expr::Op::Pow: {
-        const double v = std::pow(a.v, b.v);
-        if (is_zero(b.d)) return {v, scale(b.v == 0.0 ? 0.0 : b.v * std::pow(a.v, b.v - 1.0), a.d)};
-        return {v, combine(v * b.v / a.v, a.d, v * std::log(a.v), b.d)};
-    }
-    default: throw std::logic_error("fit: not a binary operation");
-    }
-}
-
-Dual eval(const expr::Node& e, const std::vector<Dual>& values, const model::Model& m) {
+// A derived parameter's value and its gradient in η: the chain rule through its expression, with the symbolic
+// partial derivative in each parameter it uses (expr::derivative).
+Dual derived(const model::Model& m, const expr::Ptr& e, const std::vector<Dual>& values) {
     const std::size_t n = values.empty() ? 0 : values.front().d.size();
-    switch (e.op) {
-    case expr::Op::Num: return constant(e.num, n);
-    case expr::Op::Var: {
-        const int i = m.parameter_index(e.name);
-        if (i < 0) throw std::logic_error("fit: '" + e.name + "' is not a parameter");
-        return values[static_cast<std::size_t>(i)];
+    const expr::ValueLookup lookup = [&](std::string_view name) {
+        const int i = m.parameter_index(name);
+        if (i < 0) throw std::logic_error("fit: '" + std::string(name) + "' is not a parameter");
+        return values[static_cast<std::size_t>(i)].v;
+    };
+    Dual out = constant(expr::evaluate(*e, lookup), n);
+    for (const auto& id : expr::identifiers(*e)) {
+        const int j = m.parameter_index(id);
+        if (j < 0 || is_zero(values[static_cast<std::size_t>(j)].d)) continue;
+        const double partial = expr::evaluate(*expr::derivative(e, id), lookup);
+        out.d = combine(1.0, out.d, partial, values[static_cast<std::size_t>(j)].d);
     }
-    case expr::Op::Neg: {
-        const Dual a = eval(*e.a, values, m);
-        return {-a.v, scale(-1.0, a.d)};
-    }
-    case expr::Op::Exp: {
-        const Dual a = eval(*e.a, values, m);
-        const double v = std::exp(a.v);
-        return {v, scale(v, a.d)};
-    }
-    case expr::Op::Log: {
-        const Dual a = eval(*e.a, values, m);
-        return {std::log(a.v), scale(1.0 / a.v, a.d)};
-    }
-    case expr::Op::Sqrt: {
-        const Dual a = eval(*e.a, values, m);
-        const double v = std::sqrt(a.v);
-        return {v, scale(0.5 / v, a.d)};
-    }
-    case expr::Op::Add:
-    case expr::Op::Sub:
-    case expr::Op::Mul:
-    case expr::Op::Div: {
-        // Loop down the left chain of a long sum or product instead of recursing once per term.
-        std::vector<const expr::Node*> chain;
-        const expr::Node* bottom = expr::left_chain(e, chain);
-        Dual acc = eval(*bottom, values, m);
-        for (auto it = chain.rbegin(); it != chain.rend(); ++it) acc = binary((*it)->op, acc, eval(*(*it)->b, values, m));
-        return acc;
-    }
-    case expr::Op::Pow: return binary(expr::Op::Pow, eval(*e.a, values, m), eval(*e.b, values, m));
-    }
-    throw std::logic_error("fit: unknown operation");
+    return out;
 }
 
 // The spread applied to a typical value (as model/individual.cpp does), with its derivative in the typical
@@ -158,7 +116,7 @@ std::vector<double> parameter_jacobian(const model::Model& m, const std::vector<
     for (std::size_t i = 0; i < m.parameters.size(); ++i) {
         const model::Parameter& q = m.parameters[i];
         if (q.kind != model::ParamKind::Derived || !q.expr) continue;
-        const Dual typical = eval(*q.expr, values, m);
+        const Dual typical = derived(m, q.expr, values);
         values[i] = typical;
         const int k = variability_of(m, i);
         if (k >= 0)

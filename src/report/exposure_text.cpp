@@ -116,8 +116,9 @@ void write_exposure_text(std::ostream& out, const regimen::Regimen& r, const sim
         if (const Node* reason = ss.find("reason")) row(out, reason->label, reason->value.text);
         if (st.found) {
             const std::string per = " per " + cycle_noun(st);
-            const double period = v(ss.at("interval"));
-            auto share = [&](const Node& h) { return hours(v(h)) + per + " (" + percent(v(h) / period) + ")"; };
+            auto share = [&](const char* h, const char* f) {
+                return hours(v(ss.at(h))) + per + " (" + shown(ss.at(f)) + ")";
+            };
             if (ss.at("constant").value.flag) {
                 row(out, "Level", c(ss.at("peak")) + ", constant (continuous input)");
             } else {
@@ -142,10 +143,10 @@ void write_exposure_text(std::ostream& out, const regimen::Regimen& r, const sim
             row(out, ss.at("auc").label + " " + cycle_noun(st) + " / per 24 h",
                 num(v(ss.at("auc")), dg) + " / " + num(v(ss.at("auc24")), dg) + " " + au);
             if (const Node* above = doc.find("above"))
-                row(out, ss.at("above_hours").label + " " + c(above->at("threshold")), share(ss.at("above_hours")));
+                row(out, ss.at("above_hours").label + " " + c(above->at("threshold")), share("above_hours", "above_fraction"));
             if (ss.find("window_hours")) {
-                row(out, ss.at("window_hours").label, share(ss.at("window_hours")));
-                row(out, ss.at("above_high_hours").label, share(ss.at("above_high_hours")));
+                row(out, ss.at("window_hours").label, share("window_hours", "window_fraction"));
+                row(out, ss.at("above_high_hours").label, share("above_high_hours", "above_high_fraction"));
             }
             row(out, ss.at("accumulation").label,
                 shown(ss.at("accumulation")) + " (steady state / one " + cycle_noun(st) + "'s doses alone)");

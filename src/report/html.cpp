@@ -248,12 +248,10 @@ void figures_table(std::ostream& out, const Candidate& c, const Node& doc) {
             rows.push_back({label("average"), v(ss->at("average"))});
             rows.push_back({label("auc") + " " + noun + " / 24 h", num(num_of(ss->at("auc")), 6) + " / " +
                                                                       num(num_of(ss->at("auc24")), 6) + " " + au});
-            const double period = num_of(ss->at("interval"));
-            if (ss->find("above_hours"))
-                rows.push_back({label("above_hours") + " the threshold",
-                                percent(num_of(ss->at("above_hours")) / period) + " of each " + noun});
-            if (ss->find("window_hours"))
-                rows.push_back({label("window_hours"), percent(num_of(ss->at("window_hours")) / period) + " of each " + noun});
+            if (ss->find("above_fraction"))
+                rows.push_back({label("above_hours") + " the threshold", shown(ss->at("above_fraction")) + " of each " + noun});
+            if (ss->find("window_fraction"))
+                rows.push_back({label("window_hours"), shown(ss->at("window_fraction")) + " of each " + noun});
             rows.push_back({ss->at("accumulation").label, shown(ss->at("accumulation"))});
             auto from = [&](const char* k) {
                 const Node& w = ss->at(k);

@@ -2,6 +2,7 @@
 
 #include "report/caution.hpp"
 #include "report/format.hpp"
+#include "verdict/compare.hpp"
 #include "verdict/verdicts.hpp"
 
 namespace plateau::report {
@@ -148,6 +149,7 @@ Node run_model(const regimen::Regimen& r, const sim::Simulation& s, const metric
             }
         }
         if (st.found) {
+            const verdict::CycleShares shares = verdict::cycle_shares(e);
             ss.leaf("peak", c(st.peak.value), "Peak", u, 6);
             ss.leaf("peak_time", Value::of(st.peak.time), "at", "h", kTimeDigits);
             ss.leaf("constant", Value::yes_no(st.constant), "Constant");
@@ -166,12 +168,16 @@ Node run_model(const regimen::Regimen& r, const sim::Simulation& s, const metric
             ss.leaf("auc24", c(st.auc24), "AUC24, steady state", au, 6);
             if (e.above) {
                 ss.leaf("above_hours", Value::of(st.above_hours), "Time above", "h", 4);
-                ss.leaf("above_fraction", Value::of(st.interval > 0 ? st.above_hours / st.interval : 0.0),
-                        "Time above threshold, ss", "% of τ", 4, Form::Percent);
+                ss.leaf("above_fraction", Value::of(shares.above.value_or(0.0)), "Time above threshold, ss", "% of τ", 4,
+                        Form::Percent);
             }
             if (e.window) {
                 ss.leaf("window_hours", Value::of(st.window_hours), "Time inside the window", "h", 4);
+                ss.leaf("window_fraction", Value::of(shares.window.value_or(0.0)), "Time in window, ss", "% of τ", 4,
+                        Form::Percent);
                 ss.leaf("above_high_hours", Value::of(st.above_window_hours), "Time above the window", "h", 4);
+                ss.leaf("above_high_fraction", Value::of(shares.above_window.value_or(0.0)), "Time above window, ss",
+                        "% of τ", 4, Form::Percent);
             }
             ss.leaf("first_interval_auc", c(st.first_interval_auc), "AUC of the first cycle", au, 6);
             ss.leaf("accumulation", Value::of(st.accumulation), "Accumulation ratio (AUC)", "", 5);

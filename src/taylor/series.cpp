@@ -96,6 +96,7 @@ void Expander::analyse_linear() {
         if (need[op.r / stride_]) output_code_.push_back(op);
     const std::size_t ns = static_cast<std::size_t>(tape_.n_states);
     a_.assign(ns * ns, 0.0);
+    a_start_.assign(ns + 1, 0);
     c_.assign(ns, 0.0);
     w_.assign(tape_.output_slot.size() * ns, 0.0);
     d_.assign(tape_.output_slot.size(), 0.0);
@@ -166,6 +167,19 @@ void Expander::set_params(std::span<const double> values) {
         std::copy(f, f + ns, a_.begin() + static_cast<std::ptrdiff_t>(s * ns));
         c_[s] = f[ns];
     }
+    // The non-zero entries of A by row, in column order: a sum that skips only exact zeros (0·x adds ±0 to a sum
+    // that starts at +0) gives the dense sum bit for bit, and an augmented system (sensitivities) is mostly zeros.
+    a_start_.assign(ns + 1, 0);
+    a_col_.clear();
+    a_val_.clear();
+    for (std::size_t s = 0; s < ns; ++s) {
+        for (std::size_t j = 0; j < ns; ++j)
+            if (a_[s * ns + j] != 0.0) {
+                a_col_.push_back(static_cast<std::uint32_t>(state_row_[j] * stride_));
+                a_val_.push_back(a_[s * ns + j]);
+            }
+        a_start_[s + 1] = a_col_.size();
+    }
     for (std::size_t j = 0; j < tape_.output_slot.size(); ++j) {
         if (!out_affine_[j]) continue;
         const double* f = form_.data() + static_cast<std::size_t>(tape_.output_slot[j]) * w;
@@ -233,9 +247,8 @@ void Expander::expand_linear(std::span<const double> x0, std::span<const double>
     for (std::size_t n = 0; n < static_cast<std::size_t>(order_); ++n) {
         const double inv = inv_[n + 1];
         for (std::size_t s = 0; s < ns; ++s) {
-            const double* a = a_.data() + s * ns;
             double f = 0.0;
-            for (std::size_t j = 0; j < ns; ++j) f += a[j] * base[state_row_[j] * stride_ + n];
+            for (std::size_t k = a_start_[s]; k < a_start_[s + 1]; ++k) f += a_val_[k] * base[a_col_[k] + n];
             if (n == 0) f += c_[s] + (u.empty() ? 0.0 : u[s]);
             base[state_row_[s] * stride_ + n + 1] = f * inv;
         }

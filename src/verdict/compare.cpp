@@ -15,6 +15,18 @@ const model::Output& output_of(const Candidate& c) {
     return c.regimen.model.outputs[static_cast<std::size_t>(c.exposure.output)];
 }
 
+CycleShares cycle_shares(const metrics::Exposure& e) {
+    CycleShares s;
+    if (!e.steady || !e.steady->found || !(e.steady->interval > 0)) return s;
+    const auto& st = *e.steady;
+    if (e.above) s.above = st.above_hours / st.interval;
+    if (e.window) {
+        s.window = st.window_hours / st.interval;
+        s.above_window = st.above_window_hours / st.interval;
+    }
+    return s;
+}
+
 Figures figures_of(const Candidate& c) {
     Figures f;
     const auto& e = c.exposure;
@@ -51,11 +63,10 @@ Figures figures_of(const Candidate& c) {
             f.ss_lowest = st.minimum.value;
             f.dips_below_trough = st.dips_below_trough();
             f.auc24_ss = st.auc24;
-            if (e.above) f.above_ss_fraction = st.above_hours / st.interval;
-            if (e.window) {
-                f.window_ss_fraction = st.window_hours / st.interval;
-                f.above_window_ss_fraction = st.above_window_hours / st.interval;
-            }
+            const CycleShares shares = cycle_shares(e);
+            f.above_ss_fraction = shares.above;
+            f.window_ss_fraction = shares.window;
+            f.above_window_ss_fraction = shares.above_window;
             f.within_10pct = st.within_10pct;
         } else {
             f.no_steady_state = st.why_not;

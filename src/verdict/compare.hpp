@@ -26,6 +26,13 @@ struct Candidate {
 // The output a candidate's figures are about.
 const model::Output& output_of(const Candidate& c);
 
+// The shares of the steady-state cycle above the threshold, inside the window and above it (0..1); nullopt
+// without a steady state or without that target.
+struct CycleShares {
+    std::optional<double> above, window, above_window;
+};
+CycleShares cycle_shares(const metrics::Exposure& e);
+
 // The figures compared, canonical units; nullopt where a figure does not apply.
 struct Figures {
     double dose_per_day = 0.0;             // mg/day: the repeating pattern's rate, or total over the horizon

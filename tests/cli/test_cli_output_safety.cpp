@@ -159,3 +159,23 @@ TEST_CASE("cli: a truncated plot fails the command and no file is written", "[cl
     CHECK_FALSE(fs::exists(o.plot));
     CHECK(debris(dir) == 0);
 }
+
+TEST_CASE("cli: no population output replaces the cohort's table of observed covariates", "[cli][outputs]") {
+    test::TempDir dir("safety");
+    const std::string regimen = regimen_with_local_model(dir);
+    const std::string table = "wt\n60\n80\n";
+    dir.write("patients.csv", table);
+    const std::string cohort = dir.write("cohort.toml", "id = \"c\"\n[resample]\nfile = \"patients.csv\"\n"
+                                                        "units = { wt = \"kg\" }\n");
+    cli::PopulationOptions o;
+    o.regimens = {regimen};
+    o.cohort = cohort;
+    o.size = 4;
+    o.progress = false;
+    o.csv = dir.file("patients.csv");
+    std::ostringstream out, err;
+    CHECK(cli::population_command(o, out, err) == cli::kExitBadInput);
+    CHECK(contains(err.str(), "is an input file; it would be overwritten"));
+    CHECK(read(dir.file("patients.csv")) == table);
+    CHECK(debris(dir) == 0);
+}
