@@ -50,7 +50,7 @@ echo "mpi test: one subject failing on process 1 is counted, same outputs for K 
 # The dose search over virtual patients: the same JSON, summary and written regimen for K = 1, 2, 3 (23 patients,
 # two candidates, so the shares differ in size and every process searches both).
 dose=(dose regimens/zelmarin-pop-q8h-4h.toml --cohort cohorts/zelmarin-adults.toml --pta 80% --size 23 --seed 6
-      --threads 2 --intervals 8h,12h --round 250mg --above-for 50%)
+      --threads 2 --intervals 8h,12h --round 250mg --above-for 50% --window 2mg/L..80mg/L)
 "$ref_bin" "${dose[@]}" --json "$work/dref.json" --write "$work/dref.toml" > "$work/dref.txt"
 grep -q "reaches 80.0 %" "$work/dref.txt" || fail "dose: the reference run found no population dose"
 for k in 1 2 3; do
