@@ -99,6 +99,22 @@ struct DoseOptions {
     std::string json;                     // "" none, "-" standard output, else a file
     std::string write;                    // the recommended regimen as a regimen file
     std::vector<std::string> model_dirs;
+    // The population half: per candidate the smallest dose whose PTA reaches `pta` over virtual patients.
+    std::string pta;                      // "90%" or "0.9"; "" = one patient (the template's)
+    std::string cohort;                   // cohort file ("" = the template's patient, random effects only)
+    std::size_t size = 1000;
+    std::uint64_t seed = 1;
+    int threads = 1;
+};
+
+struct FitOptions {
+    std::string regimen;                  // the doses actually given and the patient's covariates
+    std::string levels;                   // CSV of measured levels (input/load_levels.hpp)
+    double tol = 1e-10;
+    std::string json, report, plot;       // "" none; json may be "-" (standard output)
+    std::string write;                    // the regimen with the individual estimates as overrides
+    std::vector<std::string> model_dirs;
+    std::string date;                     // "" = today
 };
 
 int run_command(const RunOptions& opt, std::ostream& out, std::ostream& err);
@@ -107,6 +123,7 @@ int population_command(const PopulationOptions& opt, std::ostream& out, std::ost
 int check_command(const CheckOptions& opt, std::ostream& out, std::ostream& err);
 int models_command(const ModelsOptions& opt, std::ostream& out, std::ostream& err);
 int dose_command(const DoseOptions& opt, std::ostream& out, std::ostream& err);
+int fit_command(const FitOptions& opt, std::ostream& out, std::ostream& err);
 
 // Validators shared with main.cpp: "" when the text is acceptable, else a one-line message without the option
 // name ("expected a number from 1e-15 to 1e-3, got 'abc'"). duration_problem also refuses times <= 0.

@@ -5,6 +5,7 @@
 #include "cli/outputs.hpp"
 #include "cli/support.hpp"
 #include "plot/plot.hpp"
+#include "verdict/verdicts.hpp"
 #include "report/compare.hpp"
 
 namespace plateau::cli {
@@ -46,17 +47,17 @@ int compare_command(const CompareOptions& opt, std::ostream& out, std::ostream& 
                                  "; set [targets] output to the same output in every file, or give --output NAME");
         }
 
-        std::vector<std::string> notes = report::unify_targets(loaded);
+        std::vector<std::string> notes = verdict::unify_targets(loaded);
         for (std::size_t i = 0; i < opt.regimens.size(); ++i)
             for (std::size_t j = 0; j < i; ++j)
                 if (opt.regimens[i] == opt.regimens[j])
-                    notes.push_back(report::letter_for(i) + " is the same file as " + report::letter_for(j) + ".");
+                    notes.push_back(verdict::letter_for(i) + " is the same file as " + verdict::letter_for(j) + ".");
         sim::Options so;
         so.tol = opt.tol;
         std::vector<report::Candidate> cs;
         for (std::size_t i = 0; i < loaded.size(); ++i) {
             cs.push_back(evaluate(std::move(loaded[i]), so, windows));
-            cs.back().letter = report::letter_for(i);
+            cs.back().letter = verdict::letter_for(i);
         }
         const bool stdout_taken = opt.json == "-";
         std::ostream& text = stdout_taken ? err : out;

@@ -209,12 +209,41 @@ static int plateau_main(int argc, char** argv) {
     dose->add_option("--tol", dose_opt.tol, "Integration tolerance, 1e-15 to 1e-3 (default 1e-10)")
         ->check(tolerance_validator())
         ->type_name("TOL");
+    dose->add_option("--pta", dose_opt.pta, "Per candidate the smallest dose whose PTA reaches this share, e.g. 90%")
+        ->type_name("SHARE");
+    dose->add_option("--cohort", dose_opt.cohort, "Virtual patients for --pta (default: the template's patient, "
+                                                  "random effects only)")->type_name("FILE");
+    dose->add_option("--size", dose_opt.size, "Virtual patients for --pta (default 1000)")->type_name("N");
+    dose->add_option("--seed", dose_opt.seed, "Seed of the virtual patients (default 1)")->type_name("S");
+    dose->add_option("--threads", dose_opt.threads, "Worker threads for --pta (default 1)")->type_name("N");
     add_targets(dose, dose_opt.targets);
     add_model_dirs(dose, dose_opt.model_dirs);
     dose->footer(footer("  plateau dose regimens/zelmarin-q8h-4h.toml --round 250mg\n"
                         "  plateau dose my-regimen.toml --intervals 6h,8h,12h --over 0.5h,4h --above 4mg/L --loading\n"
                         "  plateau dose my-regimen.toml --auc24 400 --round 250mg --write found.toml\n"
+                        "  plateau dose regimens/zelmarin-pop-q8h-4h.toml --cohort cohorts/zelmarin-adults.toml --pta 90% "
+                        "--round 250mg\n"
                         "--auc24 with one value asks for that AUC24 exactly; a range asks for a dose inside it."));
+
+    cli::FitOptions fit_opt;
+    CLI::App* fit = app.add_subcommand("fit", "Individual parameters from measured levels (maximum a posteriori)");
+    fit->add_option("regimen", fit_opt.regimen, "Regimen file (.toml): the doses given and the patient")
+        ->required()
+        ->type_name("REGIMEN");
+    fit->add_option("--levels", fit_opt.levels, "Measured levels (CSV: time_h and a column like conc_mg_per_L)")
+        ->required()
+        ->type_name("LEVELS.csv");
+    fit->add_option("--write", fit_opt.write, "Write the regimen with the individual estimates as overrides")
+        ->type_name("FILE.toml");
+    fit->add_option("--tol", fit_opt.tol, "Integration tolerance, 1e-15 to 1e-3 (default 1e-10)")
+        ->check(tolerance_validator())
+        ->type_name("TOL");
+    std::vector<std::string> fit_auc;
+    add_outputs(fit, fit_opt.json, fit_opt.report, fit_opt.plot, fit_auc);
+    fit->remove_option(fit->get_option("--auc"));
+    add_model_dirs(fit, fit_opt.model_dirs);
+    fit->footer(footer("  plateau fit my-regimen.toml --levels levels.csv --write individual.toml\n"
+                       "  plateau fit my-regimen.toml --levels levels.csv --report fit.html --plot fit.png --json -"));
 
     try {
         app.parse(argc, argv);
@@ -256,6 +285,7 @@ static int plateau_main(int argc, char** argv) {
         if (*check) return cli::check_command(check_opt, std::cout, std::cerr);
         if (*models) return cli::models_command(models_opt, std::cout, std::cerr);
         if (*dose) return cli::dose_command(dose_opt, std::cout, std::cerr);
+        if (*fit) return cli::fit_command(fit_opt, std::cout, std::cerr);
     } catch (const std::exception& e) {
         std::cerr << "internal error: " << e.what() << '\n';
         return cli::kExitInternal;

@@ -16,9 +16,10 @@
 #include "cli/commands.hpp"
 #include "cli/support.hpp"
 #include "plot/plot.hpp"
-#include "report/caution.hpp"
 #include "report/html.hpp"
+#include "report/compare_model.hpp"
 #include "report/json.hpp"
+#include "report/run_model.hpp"
 
 namespace plateau::cli {
 
@@ -236,19 +237,8 @@ void write_outputs(const std::vector<report::Candidate>& cs, const std::string& 
     std::string json_text;
     if (!json.empty()) {
         std::ostringstream js;
-        report::JsonContext ctx;
-        ctx.tolerance = tol;
-        if (single) {
-            report::write_exposure_json(js, cs.front().regimen, cs.front().sim, cs.front().exposure, ctx);
-        } else {
-            js << "{\n  \"regimens\": [\n";
-            for (std::size_t i = 0; i < cs.size(); ++i) {
-                js << "    ";
-                report::write_exposure_json(js, cs[i].regimen, cs[i].sim, cs[i].exposure, ctx, 2);
-                js << (i + 1 < cs.size() ? ",\n" : "\n");
-            }
-            js << "  ],\n  \"caution\": \"" << report::kCaution << "\"\n}";
-        }
+        report::write_json(js, single ? report::run_model(cs.front().regimen, cs.front().sim, cs.front().exposure, tol)
+                                      : report::compare_model(cs, tol));
         js << '\n';
         json_text = js.str();
         if (json != "-") staging.add_text(json, json_text, "--json", "JSON      written to " + json);

@@ -15,9 +15,8 @@
 #include "population/distribute.hpp"
 #include "population/reduce.hpp"
 #include "population/run.hpp"
-#include "report/compare.hpp"
 #include "report/population_report.hpp"
-#include "report/targets.hpp"
+#include "verdict/verdicts.hpp"
 
 namespace plateau::cli {
 
@@ -99,7 +98,7 @@ int population_command(const PopulationOptions& opt, std::ostream& out, std::ost
                 throw UsageError("regimens are compared on one output: " + quoted(r0.path) + " measures " + quoted(o0.name) +
                                  " but " + quoted(r.path) + " measures " + quoted(o.name) + "; give --output NAME");
         }
-        std::vector<std::string> notes = report::unify_targets(loaded);
+        std::vector<std::string> notes = verdict::unify_targets(loaded);
         std::vector<double> curve;
         if (!opt.pta_curve.empty()) {
             if (!loaded.front().targets.above)
@@ -163,7 +162,7 @@ int population_command(const PopulationOptions& opt, std::ostream& out, std::ost
         for (std::size_t r = 0; r < loaded.size(); ++r) {
             const auto& o = loaded[r].model.outputs[static_cast<std::size_t>(output_of_target(loaded[r]))];
             std::vector<std::pair<std::string, std::string>> kinds;
-            for (const auto& v : report::verdicts(loaded[r].targets, o, metrics::Exposure{})) kinds.emplace_back(v.kind, v.what);
+            for (const auto& v : verdict::verdicts(loaded[r].targets, o, metrics::Exposure{})) kinds.emplace_back(v.kind, v.what);
             pr.summaries.push_back(population::summarize(result.figures[r], result.bands[r], setup.band_points, kinds, curve,
                                                          pr.thresholds));
         }

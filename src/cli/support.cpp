@@ -12,6 +12,7 @@
 #include "input/load.hpp"
 #include "report/caution.hpp"
 #include "report/csv.hpp"
+#include "report/format.hpp"
 #include "sim/events.hpp"
 #include "taylor/stepper.hpp"
 #include "units/units.hpp"
@@ -21,11 +22,7 @@ namespace plateau::cli {
 // Helpers shared by the commands (declared in cli/support.hpp).
 
 
-std::string num(double x, int digits) {
-    char buf[40];
-    std::snprintf(buf, sizeof buf, "%.*g", digits, x);
-    return buf;
-}
+std::string num(double x, int digits) { return report::general(x, digits); }
 
 std::string plural(std::size_t n, std::string_view word) {
     std::string s = std::to_string(n) + ' ' + std::string(word);

@@ -27,13 +27,15 @@ const char* side_name(Side s) {
     return "";
 }
 
-}  // namespace
-
-void write_json(std::ostream& out, const Report& r, const std::vector<Found>& fs) {
-    const regimen::Regimen& t = r.tmpl->regimen;
+const model::Output& output_of(const regimen::Regimen& t) {
     const int oi = t.targets.output.empty() ? 0 : std::max(0, t.model.output_index(t.targets.output));
-    const model::Output& o = t.model.outputs[static_cast<std::size_t>(oi)];
-    auto conc = [&](double v) { return n(report::in_output_unit(o, v)); };
+    return t.model.outputs[static_cast<std::size_t>(oi)];
+}
+
+// Everything before the candidates: template, model, output, units, goals, rounding, rule, recommended.
+void head(std::ostream& out, const Report& r, const std::string& rule_text) {
+    const regimen::Regimen& t = r.tmpl->regimen;
+    const model::Output& o = output_of(t);
     out << "{\n  \"template\": " << q(t.path) << ",\n  \"model\": " << q(t.model.id) << ",\n  \"output\": " << q(o.name)
         << ",\n  \"unit\": " << q(o.unit_text) << ",\n  \"auc_unit\": " << q(report::auc_unit(o.unit_text))
         << ",\n  \"tolerance\": " << n(r.tolerance) << ",\n  \"goals\": [";
@@ -43,9 +45,17 @@ void write_json(std::ostream& out, const Report& r, const std::vector<Found>& fs
             << ", \"figure\": " << q(figure_name(g.figure)) << ", \"side\": " << q(side_name(g.side)) << "}";
     }
     out << "\n  ],\n  \"round_mg\": " << (r.request.round_step > 0 ? n(r.request.round_step) : "null")
-        << ",\n  \"rule\": " << q(rule(r.goals))
-        << ",\n  \"recommended\": " << (r.recommended >= 0 ? std::to_string(r.recommended) : "null")
-        << ",\n  \"candidates\": [";
+        << ",\n  \"rule\": " << q(rule_text)
+        << ",\n  \"recommended\": " << (r.recommended >= 0 ? std::to_string(r.recommended) : "null");
+}
+
+}  // namespace
+
+void write_json(std::ostream& out, const Report& r, const std::vector<Found>& fs) {
+    const model::Output& o = output_of(r.tmpl->regimen);
+    auto conc = [&](double v) { return n(report::in_output_unit(o, v)); };
+    head(out, r, rule(r.goals));
+    out << ",\n  \"candidates\": [";
     for (std::size_t i = 0; i < fs.size(); ++i) {
         const Found& f = fs[i];
         out << (i ? ",\n" : "\n") << "    {\n      \"interval\": " << n(f.shape.tau)
@@ -85,6 +95,34 @@ void write_json(std::ostream& out, const Report& r, const std::vector<Found>& fs
             out << "null";
         }
         out << "\n    }";
+    }
+    out << "\n  ],\n  \"caution\": " << q(report::kCaution) << "\n}\n";
+}
+
+void write_json(std::ostream& out, const Report& r, const std::vector<PopulationDose>& ds) {
+    head(out, r, population_rule(r.population->share));
+    const PopulationRequest& p = *r.population;
+    auto point = [&](const PtaPoint& x) {
+        return "{\"dose_mg\": " + n(x.dose) + ", \"attained\": " + std::to_string(x.attained) +
+               ", \"total\": " + std::to_string(x.total) + ", \"pta\": " + n(x.pta) + ", \"ci95\": [" +
+               n(x.ci95.first) + ", " + n(x.ci95.second) + "]}";
+    };
+    out << ",\n  \"population\": {\"cohort\": " << (p.cohort ? q(p.cohort->path) : "null")
+        << ", \"size\": " << p.size << ", \"seed\": " << p.seed << ", \"share\": " << n(p.share) << "}"
+        << ",\n  \"candidates\": [";
+    for (std::size_t i = 0; i < ds.size(); ++i) {
+        const PopulationDose& d = ds[i];
+        out << (i ? ",\n" : "\n") << "    {\n      \"interval\": " << n(d.shape.tau)
+            << ",\n      \"over\": " << n(d.shape.over) << ",\n      \"found\": " << (d.found ? "true" : "false")
+            << ",\n      \"dose_mg\": " << (d.found ? n(d.at.dose) : "null")
+            << ",\n      \"solved_mg\": " << (d.found ? n(d.exact) : "null")
+            << ",\n      \"daily_mg\": " << (d.found ? n(d.daily()) : "null")
+            << ",\n      \"recommended\": " << (static_cast<int>(i) == r.recommended ? "true" : "false")
+            << ",\n      \"pta\": " << point(d.at)
+            << ",\n      \"step_lower\": " << (d.step_down ? point(*d.step_down) : "null")
+            << ",\n      \"median_own_mg\": " << (std::isnan(d.median) ? "null" : n(d.median))
+            << ",\n      \"cannot\": {\"no_dose\": " << d.no_dose << ", \"no_steady_state\": " << d.no_steady_state
+            << ", \"not_monotone\": " << d.not_monotone << ", \"failed\": " << d.failed << "}\n    }";
     }
     out << "\n  ],\n  \"caution\": " << q(report::kCaution) << "\n}\n";
 }

@@ -6,6 +6,7 @@
 #include <string>
 #include <vector>
 
+#include "dose/population.hpp"
 #include "dose/search.hpp"
 
 namespace plateau::dose {
@@ -18,10 +19,17 @@ struct Report {
     int recommended = -1;            // index into the ranked candidates, −1 for none
     std::vector<std::string> notes;  // printed before the closing caution
     std::string trailer;             // files written
+    // The population half (--pta): who the patients are, and the share asked.
+    const PopulationRequest* population = nullptr;
+    std::string who;                 // "cohort 'zelmarin-adults' (cohorts/zelmarin-adults.toml)"
 };
 
 void write_text(std::ostream& out, const Report& r, const std::vector<Found>& fs);
 void write_json(std::ostream& out, const Report& r, const std::vector<Found>& fs);
+// The population half: per candidate the population dose, its PTA with the Wilson interval, one step lower, the
+// patients who cannot meet the targets at any dose.
+void write_text(std::ostream& out, const Report& r, const std::vector<PopulationDose>& ds);
+void write_json(std::ostream& out, const Report& r, const std::vector<PopulationDose>& ds);
 
 // "8 h", "30 min" is written "0.5 h"; "bolus" for 0.
 std::string duration_text(double h);

@@ -20,8 +20,8 @@ const model::Output& output_of(const regimen::Regimen& r) {
     return r.model.outputs[static_cast<std::size_t>(i)];
 }
 
-bool all_met(const std::vector<report::Verdict>& vs) {
-    return std::all_of(vs.begin(), vs.end(), [](const report::Verdict& v) { return v.met == true; });
+bool all_met(const std::vector<verdict::Verdict>& vs) {
+    return std::all_of(vs.begin(), vs.end(), [](const verdict::Verdict& v) { return v.met == true; });
 }
 
 // One candidate shape. Figures are cached per dose: one simulation answers every goal.
@@ -33,35 +33,19 @@ public:
     Found run() {
         Found f;
         f.shape = s_;
-        const regimen::DoseSpec& spec = t_.regimen.doses[t_.series];
-        const double start = spec.amount * s_.tau / spec.every;  // the template's daily dose
+        const double start = start_dose();
         if (!has_steady_state(start, f)) return f;
-
-        double need = 0.0, cap = std::numeric_limits<double>::infinity();
-        std::string need_label, cap_label, need_name, cap_name;
-        std::optional<double> exact;
-        std::string exact_label;
-        for (std::size_t gi = 0; gi < goals_.size(); ++gi) {
-            const Goal& g = goals_[gi];
-            Root r = solve_rising([&](double d) { return figures(d)[gi]; }, g.value, start);
-            if (r.status == RootStatus::NonMonotone) {
-                f.outcome = Outcome::NonMonotone;
-                f.message = "the search cannot be trusted for " + g.label + ": " + r.why +
-                            " (a dose search needs figures that rise with the dose)";
-                return measured(f, start, start);
-            }
-            const bool reached_at_zero = r.low == 0.0 && std::isfinite(r.high);
-            if (g.side != Side::Upper && r.status == RootStatus::Unreachable && !reached_at_zero) {
-                f.outcome = Outcome::Unreachable;
-                f.message = "no dose reaches " + g.label + ": " + r.why;
-                return measured(f, start, start);
-            }
-            if (g.side == Side::Lower && r.high > need) need = r.high, need_label = g.label, need_name = g.name;
-            if (g.side == Side::Exact) exact = r.high, exact_label = g.label, f.deciding = g.name;
-            // An upper goal never reached (even at the largest dose searched) sets no limit.
-            if (g.side == Side::Upper && std::isfinite(r.high) && r.low < cap)
-                cap = r.low, cap_label = g.label, cap_name = g.name;
+        const Span sp = span(start);
+        if (sp.outcome == Outcome::NonMonotone || sp.outcome == Outcome::Unreachable) {
+            f.outcome = sp.outcome;
+            f.message = sp.message;
+            return measured(f, start, start);
         }
+        const double need = sp.need, cap = sp.cap;
+        const std::optional<double> exact = sp.exact;
+        const std::string &need_label = sp.need_label, &cap_label = sp.cap_label, &need_name = sp.need_name,
+                          &cap_name = sp.cap_name, &exact_label = sp.exact_label;
+        if (exact) f.deciding = sp.exact_name;
         double dose = 0.0;
         bool nearest = false;
         if (exact) {
@@ -112,7 +96,69 @@ public:
         return f;
     }
 
+    // The doses between which every target is met (need ≤ dose ≤ cap), or why there are none. No dose is
+    // measured over the template's span: this is all the population search asks of each virtual patient.
+    Limits limits() {
+        Limits l;
+        Found f;
+        const double start = start_dose();
+        if (!has_steady_state(start, f)) {
+            l.outcome = Outcome::Unreachable;
+            l.no_steady_state = true;
+            return l;
+        }
+        const Span sp = span(start);
+        l.outcome = sp.outcome;
+        if (l.outcome != Outcome::Meets) return l;
+        l.need = sp.need;
+        l.cap = sp.cap;
+        if (!(sp.need <= sp.cap)) l.outcome = Outcome::Infeasible;
+        return l;
+    }
+
 private:
+    struct Span {
+        Outcome outcome = Outcome::Meets;  // or NonMonotone, Unreachable (with the message)
+        std::string message;
+        double need = 0.0, cap = std::numeric_limits<double>::infinity();
+        std::string need_label, cap_label, need_name, cap_name;
+        std::optional<double> exact;
+        std::string exact_label, exact_name;
+    };
+
+    double start_dose() const {
+        const regimen::DoseSpec& spec = t_.regimen.doses[t_.series];
+        return spec.amount * s_.tau / spec.every;  // the template's daily dose
+    }
+
+    // Each goal solved on its own: the largest lower-goal dose, the smallest upper-goal limit, the exact dose.
+    Span span(double start) {
+        Span sp;
+        for (std::size_t gi = 0; gi < goals_.size(); ++gi) {
+            const Goal& g = goals_[gi];
+            Root r = solve_rising([&](double d) { return figures(d)[gi]; }, g.value, start);
+            if (r.status == RootStatus::NonMonotone) {
+                sp.outcome = Outcome::NonMonotone;
+                sp.message = "the search cannot be trusted for " + g.label + ": " + r.why +
+                             " (a dose search needs figures that rise with the dose)";
+                return sp;
+            }
+            const bool reached_at_zero = r.low == 0.0 && std::isfinite(r.high);
+            if (g.side != Side::Upper && r.status == RootStatus::Unreachable && !reached_at_zero) {
+                sp.outcome = Outcome::Unreachable;
+                sp.message = "no dose reaches " + g.label + ": " + r.why;
+                return sp;
+            }
+            if (g.side == Side::Lower && r.high > sp.need)
+                sp.need = r.high, sp.need_label = g.label, sp.need_name = g.name;
+            if (g.side == Side::Exact) sp.exact = r.high, sp.exact_label = g.label, sp.exact_name = g.name;
+            // An upper goal never reached (even at the largest dose searched) sets no limit.
+            if (g.side == Side::Upper && std::isfinite(r.high) && r.low < sp.cap)
+                sp.cap = r.low, sp.cap_label = g.label, sp.cap_name = g.name;
+        }
+        return sp;
+    }
+
     const Template& t_;
     const std::vector<Goal>& goals_;
     const Request& q_;
@@ -151,7 +197,7 @@ private:
                                                                      : std::string("the regimen does not repeat"));
                 f.exact = f.dose = start;
                 f.at = c;
-                f.verdicts = report::verdicts(c.regimen.targets, output_of(c.regimen), c.exposure);
+                f.verdicts = verdict::verdicts(c.regimen.targets, output_of(c.regimen), c.exposure);
             }
         }
         return false;
@@ -161,7 +207,7 @@ private:
         f.exact = exact;
         f.dose = dose;
         f.at = m_(variant(t_, s_, dose));
-        f.verdicts = report::verdicts(f.at->regimen.targets, output_of(f.at->regimen), f.at->exposure);
+        f.verdicts = verdict::verdicts(f.at->regimen.targets, output_of(f.at->regimen), f.at->exposure);
         return f;
     }
 
@@ -193,6 +239,11 @@ private:
 };
 
 }  // namespace
+
+Limits limits(const Template& t, const std::vector<Goal>& goals, const Shape& s, const Measure& m) {
+    const Request q;
+    return ShapeSearch(t, goals, q, m, s).limits();
+}
 
 std::vector<Found> search(const Template& t, const std::vector<Goal>& goals, const Request& q, const Measure& m) {
     std::vector<Found> out;

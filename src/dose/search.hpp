@@ -12,7 +12,7 @@
 #include "dose/shape.hpp"
 #include "dose/solve.hpp"
 #include "report/compare.hpp"
-#include "report/targets.hpp"
+#include "verdict/verdicts.hpp"
 
 namespace plateau::dose {
 
@@ -50,11 +50,23 @@ struct Found {
     std::string deciding;                 // label of the goal that set the dose
     std::string message;                  // plain words for anything but Meets
     std::optional<report::Candidate> at;  // measured at `dose` (absent when nothing could be measured)
-    std::vector<report::Verdict> verdicts;
+    std::vector<verdict::Verdict> verdicts;
     std::optional<Loading> loading;
     double miss = 0.0;  // with an exact goal: |figure at `dose` − value| / value (rounding moves it)
     double daily() const { return dose * 24.0 / shape.tau; }
 };
+
+// One patient's doses meeting every target at steady state: from `need` to `cap` (both met; cap = +inf when no
+// upper goal limits the dose). Outcome Meets, or Unreachable (no dose reaches a lower goal, or no steady state
+// even at a thousandth of the template's dose: `no_steady_state`), Infeasible (need > cap), NonMonotone.
+struct Limits {
+    Outcome outcome = Outcome::Meets;
+    bool no_steady_state = false;
+    double need = 0.0, cap = 0.0;
+};
+
+// The limits for one shape, without an exact goal (a population search has none).
+Limits limits(const Template& t, const std::vector<Goal>& goals, const Shape& s, const Measure& m);
 
 // Searches every shape. `goals` must hold at least one lower or exact goal.
 std::vector<Found> search(const Template& t, const std::vector<Goal>& goals, const Request& q, const Measure& m);

@@ -7,22 +7,15 @@
 
 #include <boost/math/tools/toms748_solve.hpp>
 
+#include "report/format.hpp"
+
 namespace plateau::dose {
 
 namespace {
 
-std::string mg(double d) {
-    char buf[40];
-    std::snprintf(buf, sizeof buf, "%.6g mg", d);
-    return buf;
-}
+std::string mg(double d) { return report::general(d, 6) + " mg"; }
 
-std::string val(double v) {
-    if (std::isinf(v)) return "no steady state";
-    char buf[40];
-    std::snprintf(buf, sizeof buf, "%.6g", v);
-    return buf;
-}
+std::string val(double v) { return std::isinf(v) ? "no steady state" : report::general(v, 6); }
 
 // The figure fell while the dose rose (beyond the figures' own round-off): the first such pair, or "".
 std::string falling_pair(std::vector<Sample> s) {

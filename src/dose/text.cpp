@@ -93,7 +93,11 @@ std::string duration_text(double h) {
     return h > 0.0 ? report::num(h) + " h" : "bolus";
 }
 
-void write_text(std::ostream& out, const Report& r, const std::vector<Found>& fs) {
+namespace {
+
+// Caution, what was searched (`aim`: for what each candidate's dose is the smallest), how doses are rounded.
+void heading(std::ostream& out, const Report& r, std::size_t candidates, const std::string& aim,
+             const std::string& rounding) {
     caution(out);
     out << '\n';
     const regimen::Regimen& t = r.tmpl->regimen;
@@ -108,19 +112,30 @@ void write_text(std::ostream& out, const Report& r, const std::vector<Found>& fs
     std::string goals;
     for (std::size_t i = 0; i < labels.size(); ++i) goals += (i ? "; " : "") + labels[i];
     wrap(out, goals + " (at steady state)", "Targets   ", "          ");
+    if (r.population)
+        wrap(out,
+             std::to_string(r.population->size) + " virtual patients, " + r.who + ", seed " +
+                 std::to_string(r.population->seed) + "; the same patients at every dose",
+             "Patients  ", "          ");
     wrap(out,
          "the maintenance series (" + report::num(spec.amount) + " mg every " + duration_text(spec.every) +
              (spec.over > 0 ? " over " + duration_text(spec.over) : " as a bolus") +
-             " in the template): " + std::to_string(fs.size()) + " candidate" + (fs.size() == 1 ? "" : "s") +
-             "; the smallest dose meeting every target, to 1e-12 relative",
+             " in the template): " + std::to_string(candidates) + " candidate" + (candidates == 1 ? "" : "s") + "; " +
+             aim,
          "Varied    ", "          ");
     if (r.request.round_step > 0)
-        wrap(out,
-             "doses up to a multiple of " + report::num(r.request.round_step) +
-                 " mg (to the nearest for an exact target or a compromise); every figure is at the rounded dose",
-             "Rounded   ", "          ");
+        wrap(out, "doses up to a multiple of " + report::num(r.request.round_step) + " mg" + rounding, "Rounded   ",
+             "          ");
     out << '\n';
+}
 
+}  // namespace
+
+void write_text(std::ostream& out, const Report& r, const std::vector<Found>& fs) {
+    heading(out, r, fs.size(), "the smallest dose meeting every target, to 1e-12 relative",
+            " (to the nearest for an exact target or a compromise); every figure is at the rounded dose");
+    const regimen::Regimen& t = r.tmpl->regimen;
+    const model::Output& o = output_of(t);
     const std::vector<Figure> figs = shown(r.goals);
     std::vector<std::vector<std::string>> rows;
     std::vector<std::string> head = {"", "every", "over", "dose (mg)"};
@@ -189,6 +204,85 @@ void write_text(std::ostream& out, const Report& r, const std::vector<Found>& fs
         if (!f.message.empty()) notes.push_back(who + f.message + ".");
         if (f.loading && !f.loading->problem.empty())
             notes.push_back(who + "no loading dose: " + f.loading->problem + ".");
+    }
+    notes.insert(notes.end(), r.notes.begin(), r.notes.end());
+    if (!notes.empty()) {
+        out << "\nNotes\n";
+        for (const auto& n : notes) wrap(out, n, "  - ", "    ");
+    }
+    out << '\n';
+    if (!r.trailer.empty()) out << r.trailer;
+    caution(out);
+}
+
+void write_text(std::ostream& out, const Report& r, const std::vector<PopulationDose>& ds) {
+    const std::string share = report::percent(r.population->share);
+    const bool rounded = r.request.round_step > 0;
+    heading(out, r, ds.size(),
+            "the smallest dose whose PTA (every target met at steady state) reaches " + share +
+                ": each patient's own smallest dose solved to 1e-12 relative, the PTA at a dose counted from them",
+            "; the PTA is counted at the rounded dose and one step lower");
+    std::vector<std::string> head = {"", "every", "over", "dose (mg)"};
+    if (rounded) head.push_back("solved (mg)");
+    for (const char* h : {"mg/day", "PTA", "95 % interval"}) head.push_back(h);
+    if (rounded) head.push_back("step lower");
+    for (const char* h : {"median own (mg)", "cannot", "verdict"}) head.push_back(h);
+    std::vector<std::vector<std::string>> rows = {head};
+    for (std::size_t i = 0; i < ds.size(); ++i) {
+        const PopulationDose& d = ds[i];
+        std::vector<std::string> row = {static_cast<int>(i) == r.recommended ? "*" : "", duration_text(d.shape.tau),
+                                        duration_text(d.shape.over), d.found ? report::num(d.at.dose, 6) : "—"};
+        if (rounded) row.push_back(d.found ? report::num(d.exact, 6) : "—");
+        row.push_back(d.found ? report::num(d.daily(), 6) : "—");
+        row.push_back(report::percent(d.at.pta));
+        row.push_back(report::percent(d.at.ci95.first) + " – " + report::percent(d.at.ci95.second));
+        if (rounded) row.push_back(d.step_down ? report::percent(d.step_down->pta) : "—");
+        row.push_back(std::isnan(d.median) ? "—" : report::num(d.median, 6));
+        row.push_back(std::to_string(d.cannot()));
+        row.push_back(d.found ? "reaches " + share : "out of reach");
+        rows.push_back(row);
+    }
+    table(out, rows);
+    out << '\n';
+    wrap(out,
+         "PTA: the share of all " + std::to_string(r.population->size) +
+             " patients meeting every target at the dose shown, with the Wilson score 95 % interval" +
+             (rounded ? "; step lower: the PTA one rounding step below" : "") +
+             "; median own: the median of the patients' own smallest doses; cannot: patients meeting the targets at "
+             "no dose, or without a steady state (counted as not attaining).",
+         "", "");
+    if (r.recommended >= 0) {
+        const PopulationDose& d = ds[static_cast<std::size_t>(r.recommended)];
+        wrap(out,
+             "* recommended (" + population_rule(r.population->share) + "): " + report::num(d.at.dose, 6) +
+                 " mg every " + duration_text(d.shape.tau) +
+                 (d.shape.over > 0 ? " as infusions over " + duration_text(d.shape.over) : " as a bolus") + ", " +
+                 report::num(d.daily(), 6) + " mg a day: PTA " + report::percent(d.at.pta) + " (" +
+                 std::to_string(d.at.attained) + " of " + std::to_string(d.at.total) + ").",
+             "", "  ");
+    } else {
+        wrap(out, "No candidate reaches a PTA of " + share + ": nothing is recommended.", "", "");
+    }
+    std::vector<std::string> notes;
+    for (const PopulationDose& d : ds) {
+        const std::string who = "every " + duration_text(d.shape.tau) + ", " +
+                                (d.shape.over > 0 ? "over " + duration_text(d.shape.over) : "bolus") + ": ";
+        if (!d.found)
+            notes.push_back(who + "no dose reaches a PTA of " + share + "; the most is " + report::percent(d.at.pta) +
+                            " (" + std::to_string(d.at.attained) + " of " + std::to_string(d.at.total) + ") at " +
+                            report::num(d.at.dose, 6) + " mg.");
+        if (d.cannot() == 0) continue;
+        std::vector<std::string> parts;
+        if (d.no_dose) parts.push_back(std::to_string(d.no_dose) + " meet every target at no dose");
+        if (d.no_steady_state) parts.push_back(std::to_string(d.no_steady_state) + " have no steady state");
+        if (d.not_monotone)
+            parts.push_back(std::to_string(d.not_monotone) +
+                            " have a figure that falls while the dose rises (not monotone: not trusted)");
+        if (d.failed) parts.push_back(std::to_string(d.failed) + " failed numerically");
+        std::string list;
+        for (std::size_t i = 0; i < parts.size(); ++i) list += (i ? "; " : "") + parts[i];
+        notes.push_back(who + std::to_string(d.cannot()) + " of " + std::to_string(d.at.total) + " patients: " + list +
+                        "; they count as not attaining.");
     }
     notes.insert(notes.end(), r.notes.begin(), r.notes.end());
     if (!notes.empty()) {

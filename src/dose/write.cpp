@@ -14,11 +14,7 @@ namespace {
 
 namespace fs = std::filesystem;
 
-std::string g12(double v) {
-    char buf[40];
-    std::snprintf(buf, sizeof buf, "%.12g", v);
-    return buf;
-}
+std::string g12(double v) { return report::general(v, 12); }
 
 // A TOML basic string.
 std::string str(const std::string& s) {

@@ -10,19 +10,15 @@
 
 #include "core/diagnostic.hpp"
 #include "expr/expr.hpp"
+#include "ops/all.hpp"
+#include "ops/table.hpp"
 
 namespace plateau::expr {
 
 namespace {
 
 constexpr std::size_t kSnippetMax = 80;
-constexpr double kMaxIntExponent = 1000.0;
-
-std::string format_number(double v) {
-    char buf[64];
-    const auto res = std::to_chars(buf, buf + sizeof buf, v);
-    return std::string(buf, res.ptr);
-}
+std::string format_number(double v) { return ops::number_text(v); }
 
 // Binding strength when printing: sums < products < unary minus < powers < atoms.
 int precedence(const Node& n) {
@@ -111,12 +107,11 @@ void print(const Node& root, std::string& out) {
                 text("^");
                 operand(*n.a, precedence(*n.a) <= 4);
                 break;
-            case Op::Exp:
-            case Op::Log:
-            case Op::Sqrt:
+            default:  // a function: name(argument)
                 text(")");
                 todo.push_back({n.a.get(), nullptr});
-                text(n.op == Op::Exp ? "exp(" : n.op == Op::Log ? "log(" : "sqrt(");
+                text("(");
+                text(ops::entry(n.op).name);
                 break;
         }
     }
@@ -129,10 +124,6 @@ std::string snippet(const Node& n) {
     return s;
 }
 
-// A unit for a message; canonical_unit gives "" for pure numbers.
-std::string unit_text(units::Dim d) {
-    return d.dimensionless() ? "a dimensionless number" : units::canonical_unit(d);
-}
 
 // A literal 0 (or -0) may be added to a value of any dimension.
 bool is_zero_literal(const Node& n) {
@@ -170,8 +161,6 @@ bool is_chain(Op op) { return op == Op::Add || op == Op::Sub || op == Op::Mul ||
     throw TextError(std::move(message), at.begin, at.end > at.begin ? at.end - at.begin : 1, std::move(expected));
 }
 
-units::Dim infer_pow(const Node& e, const DimLookup& lookup, const std::function<bool(std::string_view)>& is_constant);
-
 // A dimension that left the range the checks can hold (mg^64 and beyond) is refused where it arose.
 units::Dim checked(const Node& at, units::Dim d) {
     if (!d.in_range())
@@ -180,6 +169,19 @@ units::Dim checked(const Node& at, units::Dim d) {
              "powers of mg, L and h from -" + std::to_string(units::kMaxDimExponent) + " to " +
                  std::to_string(units::kMaxDimExponent));
     return d;
+}
+
+// Applies an operation's dimension rule (src/ops/): its answer, or its problem as an error at `e` (or at the
+// second operand), with "@" and "#" replaced by the text of `e` and of that operand.
+units::Dim apply(const Node& e, const ops::DimOut& r) {
+    if (r.problem.empty()) return checked(e, r.dim);
+    std::string message;
+    for (char c : r.problem) {
+        if (c == '@') message += snippet(e);
+        else if (c == '#' && e.b) message += snippet(*e.b);
+        else message += c;
+    }
+    fail(r.blame_operand && e.b ? *e.b : e, std::move(message), r.expected);
 }
 
 units::Dim infer(const Node& e, const DimLookup& lookup, const std::function<bool(std::string_view)>& is_constant) {
@@ -199,66 +201,36 @@ units::Dim infer(const Node& e, const DimLookup& lookup, const std::function<boo
             for (auto it = spine.rbegin(); it != spine.rend(); ++it) {
                 const Node& s = **it;
                 const units::Dim db = infer(*s.b, lookup, is_constant);
-                if (s.op == Op::Mul || s.op == Op::Div) {
-                    da = checked(s, s.op == Op::Mul ? da * db : da / db);
-                    continue;
+                if (s.op == Op::Add || s.op == Op::Sub) {
+                    // A literal 0 may be added to (or subtracted from) a value of any dimension.
+                    if (is_zero_literal(*s.a)) {
+                        da = db;
+                        continue;
+                    }
+                    if (is_zero_literal(*s.b)) continue;
                 }
-                if (is_zero_literal(*s.a)) {
-                    da = db;
-                    continue;
-                }
-                if (is_zero_literal(*s.b)) continue;
-                if (!(da == db)) {
-                    const std::string what = s.op == Op::Add
-                                                 ? "cannot add " + unit_text(da) + " and " + unit_text(db)
-                                                 : "cannot subtract " + unit_text(db) + " from " + unit_text(da);
-                    fail(s, what + " in '" + snippet(s) + "'", "both sides in the same unit");
+                switch (s.op) {
+                    case Op::Add: da = apply(s, ops::Add::dim(da, db)); break;
+                    case Op::Sub: da = apply(s, ops::Sub::dim(da, db)); break;
+                    case Op::Mul: da = apply(s, ops::Mul::dim(da, db)); break;
+                    default: da = apply(s, ops::Div::dim(da, db)); break;
                 }
             }
             return da;
         }
-        case Op::Neg: return infer(*e.a, lookup, is_constant);
-        case Op::Exp:
-        case Op::Log: {
-            const units::Dim d = infer(*e.a, lookup, is_constant);
-            if (!d.dimensionless())
-                fail(e, std::string(e.op == Op::Exp ? "exp" : "log") + " of a dimensioned value (" + unit_text(d) +
-                            ") in '" + snippet(e) + "'; its argument must be dimensionless");
-            return units::kNone;
+        case Op::Neg: return apply(e, ops::Neg::dim(infer(*e.a, lookup, is_constant)));
+        case Op::Pow: {
+            const units::Dim base = infer(*e.a, lookup, is_constant);
+            const units::Dim ex = infer(*e.b, lookup, is_constant);
+            const bool constant = first_varying(*e.b, is_constant) == nullptr;
+            return apply(e, ops::Pow::dim(base, ex, constant, constant ? fold_number(*e.b) : std::nullopt));
         }
-        case Op::Sqrt: {
-            const units::Dim d = infer(*e.a, lookup, is_constant);
-            if (d.mass % 2 != 0 || d.volume % 2 != 0 || d.time % 2 != 0)
-                fail(e, "sqrt of a value in " + unit_text(d) + " in '" + snippet(e) +
-                            "'; its argument must be dimensionless or a square such as L^2");
-            return units::Dim{d.mass / 2, d.volume / 2, d.time / 2};
-        }
-        case Op::Pow: return infer_pow(e, lookup, is_constant);
+#define PLATEAU_DIM_CASE(T) \
+    case Op::T: return apply(e, ops::T::dim(infer(*e.a, lookup, is_constant)));
+        PLATEAU_FUNCTIONS(PLATEAU_DIM_CASE)
+#undef PLATEAU_DIM_CASE
     }
     return units::kNone;
-}
-
-units::Dim infer_pow(const Node& e, const DimLookup& lookup, const std::function<bool(std::string_view)>& is_constant) {
-    const units::Dim base = infer(*e.a, lookup, is_constant);
-    const units::Dim ex = infer(*e.b, lookup, is_constant);
-    if (first_varying(*e.b, is_constant) != nullptr)
-        fail(*e.b, "exponent must be a constant: '" + snippet(*e.b) + "' in '" + snippet(e) + "' varies over time",
-             "numbers and parameters only");
-    if (!ex.dimensionless())
-        fail(*e.b, "exponent '" + snippet(*e.b) + "' has a dimension (" + unit_text(ex) + ") in '" + snippet(e) +
-                       "'; it must be dimensionless");
-    if (base.dimensionless()) return units::kNone;
-    const std::optional<double> k = fold_number(*e.b);
-    const char* const expected = "a whole-number exponent such as 2 or -1 (sqrt() gives a square root)";
-    if (!k)
-        fail(*e.b, "the exponent of a dimensioned value (" + unit_text(base) + ") must be a whole number, not '" +
-                       snippet(*e.b) + "', in '" + snippet(e) + "'",
-             expected);
-    if (!std::isfinite(*k) || std::floor(*k) != *k || std::fabs(*k) > kMaxIntExponent)
-        fail(*e.b, "the exponent of a dimensioned value (" + unit_text(base) + ") must be a whole number, not " +
-                       format_number(*k) + ", in '" + snippet(e) + "'",
-             expected);
-    return checked(e, base.pow(static_cast<long long>(*k)));
 }
 
 void collect(const Node& root, std::vector<std::string>& out) {
@@ -320,20 +292,11 @@ double evaluate(const Node& e, const ValueLookup& value) {
         case Op::Div: {
             std::vector<const Node*> spine;
             double x = evaluate(*left_chain(e, spine), value);
-            for (auto it = spine.rbegin(); it != spine.rend(); ++it) {
-                const Node& s = **it;
-                const double y = evaluate(*s.b, value);
-                x = s.op == Op::Add ? x + y : s.op == Op::Sub ? x - y : s.op == Op::Mul ? x * y : x / y;
-            }
+            for (auto it = spine.rbegin(); it != spine.rend(); ++it) x = ops::value((*it)->op, x, evaluate(*(*it)->b, value));
             return x;
         }
-        case Op::Pow: return std::pow(evaluate(*e.a, value), evaluate(*e.b, value));
-        case Op::Neg: return -evaluate(*e.a, value);
-        case Op::Exp: return std::exp(evaluate(*e.a, value));
-        case Op::Log: return std::log(evaluate(*e.a, value));
-        case Op::Sqrt: return std::sqrt(evaluate(*e.a, value));
+        default: return ops::value(e.op, evaluate(*e.a, value), e.b ? evaluate(*e.b, value) : 0.0);
     }
-    return 0.0;
 }
 
 }  // namespace plateau::expr

@@ -9,11 +9,15 @@
 #include <string_view>
 #include <vector>
 
+#include "ops/list.hpp"
 #include "units/units.hpp"
 
 namespace plateau::expr {
 
-enum class Op { Num, Var, Add, Sub, Mul, Div, Pow, Neg, Exp, Log, Sqrt };
+// Leaves (numbers, identifiers), then the operations of ops/list.hpp (each described in its file in src/ops/).
+#define PLATEAU_OP_ENUM(T) T,
+enum class Op { Num, Var, PLATEAU_OPERATORS(PLATEAU_OP_ENUM) PLATEAU_FUNCTIONS(PLATEAU_OP_ENUM) };
+#undef PLATEAU_OP_ENUM
 
 struct Node;
 using Ptr = std::shared_ptr<const Node>;
@@ -34,7 +38,7 @@ struct Node {
 
 // Parses +, -, *, /, ^ (right-associative, binds tighter than unary minus on its left: -x^2 = -(x^2)),
 // unary minus and plus, parentheses, numbers (1, 1.5, .5, 1e-3, 2.5E+4), identifiers ([A-Za-z_][A-Za-z0-9_]*),
-// and calls exp(x), log(x) (natural), sqrt(x). Any other function name (min, max, abs, ...) is rejected with a
+// and calls of the functions in ops/list.hpp (exp(x), log(x) natural, sqrt(x), ...). Any other function name (min, max, abs, ...) is rejected with a
 // message saying a Taylor series cannot cross a kink or jump. Nesting deeper than 200 levels is an error.
 // Throws plateau::TextError with the offset of the problem.
 Ptr parse(std::string_view text);

@@ -15,11 +15,13 @@
 #include <cctype>
 #include <charconv>
 #include <cstdio>
+#include <optional>
 #include <string>
 #include <system_error>
 
 #include "core/diagnostic.hpp"
 #include "expr/expr.hpp"
+#include "ops/table.hpp"
 
 namespace plateau::expr {
 
@@ -333,17 +335,14 @@ private:
     Parsed parse_call(const Token& name) {
         const std::string fn(text_.substr(name.begin, name.end - name.begin));
         const std::size_t name_len = name.end - name.begin;
-        Op op = Op::Exp;
-        if (fn == "exp") op = Op::Exp;
-        else if (fn == "log") op = Op::Log;
-        else if (fn == "sqrt") op = Op::Sqrt;
-        else if (is_kink_function(fn))
+        const std::optional<Op> found = ops::function_named(fn);
+        if (!found && is_kink_function(fn))
             throw TextError("function '" + fn +
                                 "' is not allowed: a Taylor series cannot follow a kink or a jump; use a smooth "
                                 "expression",
-                            name.begin, name_len, "exp, log or sqrt");
-        else
-            throw TextError("unknown function '" + fn + "'", name.begin, name_len, "exp, log or sqrt");
+                            name.begin, name_len, ops::function_phrase());
+        if (!found) throw TextError("unknown function '" + fn + "'", name.begin, name_len, ops::function_phrase());
+        const Op op = *found;
 
         DepthGuard guard(depth_, tok_.begin);
         advance();  // '('

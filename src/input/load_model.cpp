@@ -6,6 +6,7 @@
 #include "input/load.hpp"
 #include "input/loaders.hpp"
 #include "input/load_residual.hpp"
+#include "ops/table.hpp"
 
 namespace plateau::input {
 
@@ -13,7 +14,12 @@ namespace detail {
 
 namespace {
 
-const std::vector<std::string> kReserved{"t", "exp", "log", "sqrt"};
+// `t` and the function names of ops/list.hpp.
+const std::vector<std::string> kReserved = [] {
+    std::vector<std::string> v{"t"};
+    for (auto& name : ops::function_names()) v.push_back(std::move(name));
+    return v;
+}();
 
 // Names shared by parameters, compartments and outputs.
 class Names {

@@ -4,43 +4,61 @@
 #include <cmath>
 #include <limits>
 
+#include "metrics/sweep.hpp"
 #include "regimen/time.hpp"
 
 namespace plateau::metrics {
 
 namespace {
 
-double window_hours(const traj::Trajectory& tr, int s, const std::pair<double, double>& w, double a, double b) {
-    // Inside [low, high]: above low minus above high (the sets where the curve equals a bound have measure
-    // zero unless it is flat there).
-    return std::max(0.0, level(tr, s, w.first, a, b).hours_above - level(tr, s, w.second, a, b).hours_above);
+// The level sweeps of one series that the request asks for (each one walk over the steps).
+struct Levels {
+    std::optional<LevelSweep> above, low, high;
+};
+
+Levels levels_for(const Sweep& sw, const Request& req) {
+    Levels lv;
+    if (req.above) lv.above = sweep_level(sw, *req.above);
+    if (req.window) {
+        // A window whose low bound is the threshold (the usual case) shares its sweep.
+        if (lv.above && *req.above == req.window->first) lv.low = lv.above;
+        else lv.low = sweep_level(sw, req.window->first);
+        lv.high = sweep_level(sw, req.window->second);
+    }
+    return lv;
 }
 
-Interval interval_figures(const traj::Trajectory& tr, int s, double a, double b, const Request& req) {
+double window_hours(const Levels& lv, double a, double b) {
+    // Inside [low, high]: above low minus above high (the sets where the curve equals a bound have measure
+    // zero unless it is flat there).
+    return std::max(0.0, hours_above(*lv.low, a, b) - hours_above(*lv.high, a, b));
+}
+
+Interval interval_figures(const Sweep& sw, const Levels& lv, double a, double b) {
     Interval iv;
     iv.start = a;
     iv.end = b;
-    iv.peak = maximum(tr, s, a, b);
-    iv.minimum = minimum(tr, s, a, b);
-    iv.trough = tr.left_limit(s, b);
-    iv.auc = tr.integral(s, a, b);
-    if (req.above) iv.above_hours = level(tr, s, *req.above, a, b).hours_above;
-    if (req.window) iv.window_hours = window_hours(tr, s, *req.window, a, b);
+    iv.peak = maximum(sw, a, b);
+    iv.minimum = minimum(sw, a, b);
+    iv.trough = left_limit_at(sw, b);
+    iv.auc = integral(sw, a, b);
+    if (lv.above) iv.above_hours = hours_above(*lv.above, a, b);
+    if (lv.low) iv.window_hours = window_hours(lv, a, b);
     return iv;
 }
 
 // The time from which the output stays inside [(1 − frac)·lowest, (1 + frac)·peak] of the steady state, up to
 // `end`: the last crossing of either bound (jumps at doses included), or `start` if it never leaves the band;
 // nullopt if it is outside the band at `end`.
-std::optional<double> settled_from(const traj::Trajectory& tr, int s, double start, double end, double low_ss,
-                                   double peak_ss, double frac) {
+std::optional<double> settled_from(const Sweep& sw, double start, double end, double low_ss, double peak_ss,
+                                   double frac) {
     if (!(end > start)) return std::nullopt;
     const double low = (1.0 - frac) * low_ss, high = (1.0 + frac) * peak_ss;
-    const double last = tr.left_limit(s, end);
+    const double last = left_limit_at(sw, end);
     if (last < low || last > high) return std::nullopt;
     double t = start;
     for (double bound : {low, high})
-        for (const auto& c : level(tr, s, bound, start, end).crossings) t = std::max(t, c.time);
+        if (const auto c = last_crossing(sw, bound, start, end)) t = std::max(t, *c);
     return t;
 }
 
@@ -61,6 +79,9 @@ Exposure compute(const sim::Schedule& schedule, const sim::Simulation& sim,
     Exposure e;
     const traj::Trajectory& tr = sim.trajectory;
     const int s = sim.output_series(req.output);
+    // The trajectory is read once: every figure below comes from this sweep and one level sweep per level.
+    const Sweep sw = make_sweep(tr, s);
+    const Levels lv = levels_for(sw, req);
     e.output = req.output;
     e.start = tr.start();
     e.end = tr.end();
@@ -68,41 +89,40 @@ Exposure compute(const sim::Schedule& schedule, const sim::Simulation& sim,
     e.first_dose = doses.empty() ? e.start : std::clamp(doses.front(), e.start, e.end);
     const double horizon = e.end - e.start;
 
-    e.peak = maximum(tr, s, e.start, e.end);
+    e.peak = maximum(sw, e.start, e.end);
     // The minimum from the first peak on, that peak included: before it, an infusion or an oral dose starts
     // from zero, which says nothing about the regimen; including the peak itself keeps the minimum from jumping
     // when the first peak falls at the instant of the next dose (the value just before a bolus). With a lag
     // longer than the interval the first intervals stay at zero: the first peak is the first one above zero.
     {
-        Extreme first{tr.value(s, e.first_dose), e.first_dose};
+        Extreme first{value_at(sw, e.first_dose), e.first_dose};
         for (const auto& iv : schedule.intervals) {
-            const Extreme pk = maximum(tr, s, std::max(iv.start, e.start), std::min(iv.end, e.end));
+            const Extreme pk = maximum(sw, std::max(iv.start, e.start), std::min(iv.end, e.end));
             if (pk.value > 0.0) {
                 first = pk;
                 break;
             }
         }
-        e.minimum = minimum(tr, s, first.time, e.end);
+        e.minimum = minimum(sw, first.time, e.end);
         if (first.value < e.minimum.value) e.minimum = first;
     }
-    e.auc = tr.integral(s, e.start, e.end);
-    for (const auto& [a, b] : req.auc_windows) e.auc_windows.push_back({a, b, tr.integral(s, a, b)});
+    e.auc = integral(sw, e.start, e.end);
+    for (const auto& [a, b] : req.auc_windows) e.auc_windows.push_back({a, b, integral(sw, a, b)});
     for (double d0 = e.start; before(d0, e.end); d0 += 24.0) {
         Day d{d0, std::min(d0 + 24.0, e.end), 0.0, 0.0, false};
         d.partial = before(d.end, d0 + 24.0);
-        d.auc = tr.integral(s, d.start, d.end);
-        if (req.above) d.above_hours = level(tr, s, *req.above, d.start, d.end).hours_above;
+        d.auc = integral(sw, d.start, d.end);
+        if (lv.above) d.above_hours = hours_above(*lv.above, d.start, d.end);
         e.days.push_back(d);
     }
     if (req.above) {
         e.above = req.above;
-        LevelResult lv = level(tr, s, *req.above, e.start, e.end);
-        e.above_hours = lv.hours_above;
-        e.above_fraction = horizon > 0 ? lv.hours_above / horizon : 0.0;
-        e.crossings = lv.crossings;
-        if (tr.value(s, e.start) > *req.above) e.first_reached = e.start;
+        e.above_hours = hours_above(*lv.above, e.start, e.end);
+        e.above_fraction = horizon > 0 ? e.above_hours / horizon : 0.0;
+        e.crossings = crossings_in(*lv.above, e.start, e.end);
+        if (value_at(sw, e.start) > *req.above) e.first_reached = e.start;
         else
-            for (const auto& c : lv.crossings)
+            for (const auto& c : e.crossings)
                 if (c.up) {
                     e.first_reached = c.time;
                     break;
@@ -110,13 +130,13 @@ Exposure compute(const sim::Schedule& schedule, const sim::Simulation& sim,
     }
     if (req.window) {
         e.window = req.window;
-        e.window_hours = window_hours(tr, s, *req.window, e.start, e.end);
+        e.window_hours = window_hours(lv, e.start, e.end);
         e.window_fraction = horizon > 0 ? e.window_hours / horizon : 0.0;
-        e.above_window_hours = level(tr, s, req.window->second, e.start, e.end).hours_above;
+        e.above_window_hours = hours_above(*lv.high, e.start, e.end);
         e.above_window_fraction = horizon > 0 ? e.above_window_hours / horizon : 0.0;
     }
     for (const auto& iv : schedule.intervals) {
-        e.intervals.push_back(interval_figures(tr, s, iv.start, std::min(iv.end, e.end), req));
+        e.intervals.push_back(interval_figures(sw, lv, iv.start, std::min(iv.end, e.end)));
         e.intervals.back().partial = iv.partial;
     }
 
@@ -133,12 +153,14 @@ Exposure compute(const sim::Schedule& schedule, const sim::Simulation& sim,
         if (st.found) {
             const traj::Trajectory& pt = steady->period.trajectory;
             const double tau = st.interval;
-            Interval iv = interval_figures(pt, s, 0.0, tau, req);
+            const Sweep psw = make_sweep(pt, s);
+            const Levels plv = levels_for(psw, req);
+            Interval iv = interval_figures(psw, plv, 0.0, tau);
             st.peak = iv.peak;
             st.minimum = iv.minimum;
             st.constant = iv.peak.value - iv.minimum.value <= 1e-9 * std::abs(iv.peak.value);
             for (double off : schedule.cycle->dose_offsets) {
-                const double v = pt.left_limit(s, off > 0.0 ? off : tau);
+                const double v = left_limit_at(psw, off > 0.0 ? off : tau);
                 st.troughs.push_back({off, v});
             }
             st.trough = iv.trough;
@@ -153,7 +175,7 @@ Exposure compute(const sim::Schedule& schedule, const sim::Simulation& sim,
             st.auc24 = st.average * 24.0;
             st.above_hours = iv.above_hours;
             st.window_hours = iv.window_hours;
-            if (req.window) st.above_window_hours = level(pt, s, req.window->second, 0.0, tau).hours_above;
+            if (plv.high) st.above_window_hours = hours_above(*plv.high, 0.0, tau);
             st.first_interval_auc = steady->first_cycle.trajectory.integral(s, 0.0, tau);
             // Undefined (NaN, printed as absent) when the cycle's doses show nothing within one cycle (a lag
             // longer than the cycle).
@@ -162,8 +184,8 @@ Exposure compute(const sim::Schedule& schedule, const sim::Simulation& sim,
             // Judged up to when the pattern's next dose would have come after the regimen's last one (or the
             // horizon, if sooner): until then the regimen follows the pattern, after it the washout begins.
             const double check_end = std::min(e.end, schedule.cycle->next_due);
-            st.within_10pct = settled_from(tr, s, e.first_dose, check_end, st.minimum.value, st.peak.value, 0.10);
-            st.within_5pct = settled_from(tr, s, e.first_dose, check_end, st.minimum.value, st.peak.value, 0.05);
+            st.within_10pct = settled_from(sw, e.first_dose, check_end, st.minimum.value, st.peak.value, 0.10);
+            st.within_5pct = settled_from(sw, e.first_dose, check_end, st.minimum.value, st.peak.value, 0.05);
             st.period = pt;
         }
         e.steady = st;

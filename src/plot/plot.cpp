@@ -307,7 +307,10 @@ std::string build_script(const Figure& f, Format fmt, const std::string& output,
             if (!c.label.empty()) items.push_back("keyentry with lines " + style + " " + title);
             continue;
         }
-        items.push_back("'-' using 1:2 with lines " + style + " " + title);
+        if (c.points)
+            items.push_back("'-' using 1:2 with points pt 7 ps 1.3 lc rgb '" + std::string(colour(i)) + "' " + title);
+        else
+            items.push_back("'-' using 1:2 with lines " + style + " " + title);
         data.push_back(std::move(col));
     }
     // Dose ticks: one data block per curve drawn as short vertical vectors (one `set arrow` per tick costs

@@ -10,7 +10,11 @@
 
 namespace plateau::plot {
 
-struct Curve { std::string label; std::vector<double> t, y; };      // hours, display units
+struct Curve {                                                      // hours, display units
+  std::string label;
+  std::vector<double> t, y;
+  bool points = false;                                              // drawn as markers (measured levels), not a line
+};
 
 struct Figure {
   std::string title, xlabel = "time (h)", ylabel;

@@ -5,6 +5,8 @@
 // Only this header is seen by the rest of the code; the MPI calls live in distribute_mpi.cpp alone.
 #pragma once
 
+#include <cstddef>
+#include <functional>
 #include <vector>
 
 #include "population/run.hpp"
@@ -25,6 +27,13 @@ Place place();
 // per-subject results are gathered, in subject order, on process 0 (the other processes get their share only).
 // An exception on any process is rethrown on every process (the same message where it is the same error).
 Result run_shared(const std::vector<regimen::Regimen>& regimens, const Setup& setup);
+
+// Per-subject rows of `width` doubles on every process of the job (the dose search's individual doses): each
+// process calls `work(first, stride, rows)`, which fills the rows of subjects first, first + stride, ... of
+// `rows` (n × width, subject-major); process 0 then holds every subject's row, bit for bit as one process computes
+// it, the others their own share. An exception on any process is rethrown on every process, as in run_shared.
+using RowWork = std::function<void(std::size_t first, std::size_t stride, std::vector<double>& rows)>;
+std::vector<double> rows_shared(std::size_t n, std::size_t width, const RowWork& work);
 
 // The exit code every process returns: the worst of all processes' codes.
 int agree_exit_code(int code);

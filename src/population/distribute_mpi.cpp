@@ -151,6 +151,16 @@ double seconds_since(std::chrono::steady_clock::time_point t) {
     return std::chrono::duration<double>(std::chrono::steady_clock::now() - t).count();
 }
 
+// PLATEAU_MPI_TIMES=1: each process's compute time and process 0's gather time on standard error (for bench/).
+void report_times(const Place& p, double compute, double gather, std::size_t subjects) {
+    if (const char* t = std::getenv("PLATEAU_MPI_TIMES"); t == nullptr || std::strcmp(t, "1") != 0) return;
+    std::vector<double> all(static_cast<std::size_t>(p.ranks));
+    MPI_Gather(&compute, 1, MPI_DOUBLE, all.data(), 1, MPI_DOUBLE, 0, MPI_COMM_WORLD);
+    if (p.rank != 0) return;
+    for (int k = 0; k < p.ranks; ++k) std::fprintf(stderr, "mpi-times: rank %d compute %.6f s\n", k, all[static_cast<std::size_t>(k)]);
+    std::fprintf(stderr, "mpi-times: gather %.6f s for %zu subjects\n", gather, subjects);
+}
+
 }  // namespace
 
 void start_processes(int* argc, char*** argv) {
@@ -197,17 +207,44 @@ Result run_shared(const std::vector<regimen::Regimen>& regimens, const Setup& se
             if (u.at != bytes.size()) throw std::runtime_error("MPI: a process sent more than its share of the population");
         }
     }
-    const double gather = seconds_since(gather_start);
-    // PLATEAU_MPI_TIMES=1: each process's compute time and process 0's gather time on standard error (for bench/).
-    if (const char* t = std::getenv("PLATEAU_MPI_TIMES"); t != nullptr && std::strcmp(t, "1") == 0) {
-        std::vector<double> all(static_cast<std::size_t>(p.ranks));
-        MPI_Gather(&compute, 1, MPI_DOUBLE, all.data(), 1, MPI_DOUBLE, 0, MPI_COMM_WORLD);
-        if (p.rank == 0) {
-            for (int k = 0; k < p.ranks; ++k) std::fprintf(stderr, "mpi-times: rank %d compute %.6f s\n", k, all[static_cast<std::size_t>(k)]);
-            std::fprintf(stderr, "mpi-times: gather %.6f s for %zu subjects\n", gather, setup.size);
+    report_times(p, compute, seconds_since(gather_start), setup.size);
+    return result;
+}
+
+std::vector<double> rows_shared(std::size_t n, std::size_t width, const RowWork& work) {
+    const Place p = place();
+    std::vector<double> rows(n * width);
+    if (p.ranks == 1) {
+        work(0, 1, rows);
+        return rows;
+    }
+    const auto first = static_cast<std::size_t>(p.rank), stride = static_cast<std::size_t>(p.ranks);
+    const auto start = std::chrono::steady_clock::now();
+    std::exception_ptr error;
+    try {
+        work(first, stride, rows);
+    } catch (...) {
+        error = std::current_exception();
+    }
+    share_failure(error);
+    const double compute = seconds_since(start);
+    const auto gather_start = std::chrono::steady_clock::now();
+    if (p.rank != 0) {
+        Packer pk;
+        for (std::size_t i = first; i < n; i += stride)
+            for (std::size_t k = 0; k < width; ++k) pk.put(rows[i * width + k]);
+        send_bytes(pk.bytes, 0);
+    } else {
+        for (int from = 1; from < p.ranks; ++from) {
+            const std::vector<char> bytes = receive_bytes(from);
+            Unpacker u{bytes};
+            for (auto i = static_cast<std::size_t>(from); i < n; i += stride)
+                for (std::size_t k = 0; k < width; ++k) rows[i * width + k] = u.get<double>();
+            if (u.at != bytes.size()) throw std::runtime_error("MPI: a process sent more than its share of the subjects");
         }
     }
-    return result;
+    report_times(p, compute, seconds_since(gather_start), n);
+    return rows;
 }
 
 int agree_exit_code(int code) {

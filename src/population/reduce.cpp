@@ -32,9 +32,8 @@ std::vector<double> doubling(double low, double high) {
 
 namespace {
 
-Quantiles spread_of(const std::vector<Figures>& fs, double Figures::*field, std::string key, std::string label,
-                 std::string unit) {
-    Quantiles s{std::move(key), std::move(label), std::move(unit), 0, {}};
+Quantiles spread_of(const std::vector<Figures>& fs, double Figures::*field, std::string key) {
+    Quantiles s{std::move(key), 0, {}};
     std::vector<double> v;
     for (const auto& f : fs)
         if (std::isfinite(f.*field)) v.push_back(f.*field);
@@ -67,13 +66,13 @@ RegimenSummary summarize(const std::vector<Figures>& figures, const std::vector<
         a.ci95 = wilson95(a.attained, s.total);
         s.targets.push_back(a);
     }
-    s.spreads.push_back(spread_of(figures, &Figures::first_peak, "first_peak", "First-dose peak", "conc"));
-    s.spreads.push_back(spread_of(figures, &Figures::ss_peak, "ss_peak", "Steady-state peak", "conc"));
-    s.spreads.push_back(spread_of(figures, &Figures::ss_trough, "ss_trough", "Steady-state trough", "conc"));
-    s.spreads.push_back(spread_of(figures, &Figures::ss_average, "ss_average", "Steady-state average", "conc"));
-    s.spreads.push_back(spread_of(figures, &Figures::ss_auc24, "ss_auc24", "Steady-state AUC24", "auc"));
-    s.spreads.push_back(spread_of(figures, &Figures::above_pct, "above_pct", "Time above threshold, ss", "percent"));
-    s.spreads.push_back(spread_of(figures, &Figures::first_reached, "first_reached", "First reaches threshold", "hours"));
+    s.spreads.push_back(spread_of(figures, &Figures::first_peak, "first_peak"));
+    s.spreads.push_back(spread_of(figures, &Figures::ss_peak, "ss_peak"));
+    s.spreads.push_back(spread_of(figures, &Figures::ss_trough, "ss_trough"));
+    s.spreads.push_back(spread_of(figures, &Figures::ss_average, "ss_average"));
+    s.spreads.push_back(spread_of(figures, &Figures::ss_auc24, "ss_auc24"));
+    s.spreads.push_back(spread_of(figures, &Figures::above_pct, "above_pct"));
+    s.spreads.push_back(spread_of(figures, &Figures::first_reached, "first_reached"));
 
     // A subject meets threshold T when its attained level is at least T (with the target's own round-off
     // allowance, 1e-12 relative).

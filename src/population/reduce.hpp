@@ -23,8 +23,7 @@ double percentile(const std::vector<double>& sorted, double p);
 inline constexpr std::array<double, 5> kPercentiles{5, 25, 50, 75, 95};
 
 struct Quantiles {
-    std::string key, label;   // "ss_trough", "Steady-state trough"
-    std::string unit;         // "conc", "auc", "hours", "percent": the writers choose the unit text
+    std::string key;          // "ss_trough": the figure's label and unit are report/figures' (by this key)
     std::size_t n = 0;        // subjects with this figure
     std::array<double, 5> values{};   // at kPercentiles, canonical
 };
@@ -56,7 +55,7 @@ struct RegimenSummary {
 // Thresholds from `low` doubling up to `high` (inclusive, within round-off).
 std::vector<double> doubling(double low, double high);
 
-// `verdicts`: the kind/what of each target (from report::verdicts on any exposure of the regimen).
+// `verdicts`: the kind/what of each target (from verdict::verdicts on any exposure of the regimen).
 RegimenSummary summarize(const std::vector<Figures>& figures, const std::vector<float>& bands, int band_points,
                          const std::vector<std::pair<std::string, std::string>>& verdicts,
                          const std::vector<double>& curve, const ThresholdDist* dist);

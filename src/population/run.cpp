@@ -11,7 +11,7 @@
 #include "metrics/exposure.hpp"
 #include "metrics/level.hpp"
 #include "population/draw.hpp"
-#include "report/targets.hpp"
+#include "verdict/verdicts.hpp"
 #include "taylor/stepper.hpp"
 
 namespace plateau::population {
@@ -19,34 +19,6 @@ namespace plateau::population {
 namespace {
 
 constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
-
-// Where each cohort value goes: a model covariate (parameter index) and/or the body size.
-struct Slot {
-    int param = -1;
-    bool weight = false, height = false;
-};
-
-std::vector<Slot> slots_for(const model::Model& m, const std::vector<std::string>& names) {
-    std::vector<Slot> out;
-    for (const auto& n : names) {
-        Slot s;
-        s.param = m.parameter_index(n);
-        s.weight = n == regimen::kWeightName;
-        s.height = n == regimen::kHeightName;
-        if (s.param >= 0 && m.parameters[static_cast<std::size_t>(s.param)].kind != model::ParamKind::Covariate)
-            throw std::invalid_argument("the cohort gives '" + n + "', which is a parameter of model '" + m.id +
-                                        "', not a covariate");
-        if (s.param < 0 && !s.weight && !s.height) {
-            std::string list;
-            for (const auto& p : m.parameters)
-                if (p.kind == model::ParamKind::Covariate) list += (list.empty() ? "" : ", ") + p.name;
-            throw std::invalid_argument("the cohort gives '" + n + "', which is not a covariate of model '" + m.id +
-                                        "' (its covariates: " + (list.empty() ? "none" : list) + "; also wt, ht for dosing)");
-        }
-        out.push_back(s);
-    }
-    return out;
-}
 
 // The highest threshold met when a share `need` of each steady-state interval must be above it.
 double attained_level(const metrics::Steady& st, int series, double need) {
@@ -64,28 +36,18 @@ double attained_level(const metrics::Steady& st, int series, double need) {
 struct Worker {
     const std::vector<regimen::Regimen>& regimens;
     const Setup& setup;
-    const std::vector<Slot>& slots;
-    const std::vector<double>& cov_chol;
-    const std::vector<double>& eta_chol;
+    const Drawer& drawer;
     const std::vector<std::vector<double>>& base;   // per regimen: typical values with the regimen's patient
     const std::vector<metrics::Request>& requests;
     Result& result;
 
     void subject(std::size_t i, std::vector<regimen::Regimen>& work, std::vector<taylor::Stepper>& steppers) const {
-        const model::Model& m = regimens.front().model;
         Subject& sub = result.subjects[i];
-        if (setup.cohort != nullptr) sub.covariates = draw_covariates(*setup.cohort, cov_chol, setup.seed, i);
-        sub.eta = random_effects(setup.seed, i, eta_chol, m.variability.size());
+        drawer.draw(i, sub);
         for (std::size_t r = 0; r < regimens.size(); ++r) {
             regimen::Regimen& w = work[r];
-            std::vector<double> values = base[r];
-            regimen::BodySize body = regimens[r].body_size();
-            for (std::size_t k = 0; k < sub.covariates.size(); ++k) {
-                if (slots[k].param >= 0) values[static_cast<std::size_t>(slots[k].param)] = sub.covariates[k];
-                if (slots[k].weight) body.weight_kg = sub.covariates[k] / 1e6;
-                if (slots[k].height) body.height_cm = sub.covariates[k];
-            }
-            model::individualize(m, values, sub.eta);
+            regimen::BodySize body;
+            std::vector<double> values = drawer.values(regimens[r], base[r], sub, body);
             for (std::size_t d = 0; d < w.doses.size(); ++d)
                 w.doses[d].amount = regimen::resolved_amount(regimens[r].doses[d], body);
             w.subject_values = values;
@@ -98,7 +60,7 @@ struct Worker {
     Figures measure(std::size_t r, const regimen::Regimen& w, taylor::Stepper& stepper, std::size_t i) const {
         Figures f;
         const metrics::Request& req = requests[r];
-        const int n_targets = static_cast<int>(report::verdicts(w.targets, w.model.outputs[static_cast<std::size_t>(req.output)],
+        const int n_targets = static_cast<int>(verdict::verdicts(w.targets, w.model.outputs[static_cast<std::size_t>(req.output)],
                                                                 metrics::Exposure{})
                                                    .size());
         f.met.assign(static_cast<std::size_t>(n_targets), -1);
@@ -125,7 +87,7 @@ struct Worker {
                 band[k] = static_cast<float>(s.trajectory.value(series, times[static_cast<std::size_t>(k)]));
             f.first_peak = e.intervals.empty() ? e.peak.value : e.intervals.front().peak.value;
             f.first_reached = e.first_reached ? *e.first_reached : kNaN;
-            const auto verdicts = report::verdicts(w.targets, w.model.outputs[static_cast<std::size_t>(req.output)], e);
+            const auto verdicts = verdict::verdicts(w.targets, w.model.outputs[static_cast<std::size_t>(req.output)], e);
             for (std::size_t k = 0; k < verdicts.size(); ++k) f.met[k] = verdicts[k].met ? (*verdicts[k].met ? 1 : 0) : -1;
             if (e.steady && e.steady->found) {
                 const metrics::Steady& st = *e.steady;
@@ -147,6 +109,50 @@ struct Worker {
 };
 
 }  // namespace
+
+Drawer::Drawer(const model::Model& m, const Cohort* cohort, std::uint64_t seed)
+    : model_(&m), cohort_(cohort), seed_(seed) {
+    if (cohort != nullptr) {
+        names_ = cohort->names();
+        for (const auto& n : names_) {
+            Slot s;
+            s.param = m.parameter_index(n);
+            s.weight = n == regimen::kWeightName;
+            s.height = n == regimen::kHeightName;
+            if (s.param >= 0 && m.parameters[static_cast<std::size_t>(s.param)].kind != model::ParamKind::Covariate)
+                throw std::invalid_argument("the cohort gives '" + n + "', which is a parameter of model '" + m.id +
+                                            "', not a covariate");
+            if (s.param < 0 && !s.weight && !s.height) {
+                std::string list;
+                for (const auto& p : m.parameters)
+                    if (p.kind == model::ParamKind::Covariate) list += (list.empty() ? "" : ", ") + p.name;
+                throw std::invalid_argument("the cohort gives '" + n + "', which is not a covariate of model '" + m.id +
+                                            "' (its covariates: " + (list.empty() ? "none" : list) + "; also wt, ht for dosing)");
+            }
+            slots_.push_back(s);
+        }
+        if (!cohort->correlation.empty()) cov_chol_ = model::cholesky(cohort->correlation, cohort->covariates.size());
+    }
+    eta_chol_ = model::cholesky(model::omega_matrix(m), m.variability.size());
+}
+
+void Drawer::draw(std::size_t i, Subject& sub) const {
+    if (cohort_ != nullptr) sub.covariates = draw_covariates(*cohort_, cov_chol_, seed_, i);
+    sub.eta = random_effects(seed_, i, eta_chol_, model_->variability.size());
+}
+
+std::vector<double> Drawer::values(const regimen::Regimen& r, const std::vector<double>& base, const Subject& sub,
+                                   regimen::BodySize& body) const {
+    std::vector<double> values = base;
+    body = r.body_size();
+    for (std::size_t k = 0; k < sub.covariates.size(); ++k) {
+        if (slots_[k].param >= 0) values[static_cast<std::size_t>(slots_[k].param)] = sub.covariates[k];
+        if (slots_[k].weight) body.weight_kg = sub.covariates[k] / 1e6;
+        if (slots_[k].height) body.height_cm = sub.covariates[k];
+    }
+    model::individualize(*model_, values, sub.eta);
+    return values;
+}
 
 Result run(const std::vector<regimen::Regimen>& regimens, const Setup& setup) {
     if (regimens.empty()) throw std::invalid_argument("no regimens");
@@ -174,16 +180,9 @@ Result run(const std::vector<regimen::Regimen>& regimens, const Setup& setup) {
             t[k] = r.horizon.until * static_cast<double>(k) / static_cast<double>(t.size() - 1);
         result.band_times.push_back(std::move(t));
     }
-    std::vector<Slot> slots;
-    std::vector<double> cov_chol;
-    if (setup.cohort != nullptr) {
-        result.covariate_names = setup.cohort->names();
-        slots = slots_for(m, result.covariate_names);
-        const std::size_t nc = setup.cohort->covariates.size();
-        if (!setup.cohort->correlation.empty()) cov_chol = model::cholesky(setup.cohort->correlation, nc);
-    }
-    const std::vector<double> eta_chol = model::cholesky(model::omega_matrix(m), m.variability.size());
-    Worker worker{regimens, setup, slots, cov_chol, eta_chol, base, requests, result};
+    const Drawer drawer(m, setup.cohort, setup.seed);
+    result.covariate_names = drawer.covariate_names();
+    Worker worker{regimens, setup, drawer, base, requests, result};
 
     const std::size_t n_share = setup.first < n ? (n - setup.first + setup.stride - 1) / setup.stride : 0;
     std::atomic<std::size_t> next{0}, done{0};

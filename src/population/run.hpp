@@ -58,6 +58,34 @@ struct Result {
 };
 
 
+// How `run` draws subjects for one model and cohort, prepared once: subject i's covariates and random effects,
+// and its parameter values and body size under a regimen. Other searches over the same virtual patients (the dose
+// search) use it, so subject i is the same patient everywhere. Throws std::invalid_argument for a cohort
+// covariate the model does not have.
+class Drawer {
+public:
+    Drawer(const model::Model& m, const Cohort* cohort, std::uint64_t seed);
+    // Subject i's covariates (cohort order) and random effects into `sub`.
+    void draw(std::size_t i, Subject& sub) const;
+    // The subject's parameter values under a regimen whose own values are `base` (its overrides and patient
+    // applied: Regimen::parameter_values()); `body` gets the body size its per-kg and per-m² amounts use.
+    std::vector<double> values(const regimen::Regimen& r, const std::vector<double>& base, const Subject& sub,
+                               regimen::BodySize& body) const;
+    const std::vector<std::string>& covariate_names() const { return names_; }
+
+private:
+    struct Slot {
+        int param = -1;
+        bool weight = false, height = false;
+    };
+    const model::Model* model_;
+    const Cohort* cohort_;
+    std::uint64_t seed_;
+    std::vector<std::string> names_;
+    std::vector<Slot> slots_;
+    std::vector<double> cov_chol_, eta_chol_;
+};
+
 // Runs the population. All regimens must use the same model (the same random effects apply). Throws
 // std::invalid_argument for a cohort covariate the model does not have.
 Result run(const std::vector<regimen::Regimen>& regimens, const Setup& setup);

@@ -2,11 +2,11 @@
 
 #include <algorithm>
 #include <cmath>
-#include <cstdio>
 #include <limits>
 #include <stdexcept>
 
 #include "core/diagnostic.hpp"
+#include "report/format.hpp"
 #include "regimen/regimen.hpp"
 #include "regimen/time.hpp"
 #include "units/units.hpp"
@@ -18,17 +18,9 @@ namespace {
 // Grid points closer than this to the end are the end.
 double end_tolerance(double end) { return regimen::instant_tolerance(end); }
 
-void append_number(std::string& line, double x) {
-    char buf[32];
-    const int n = std::snprintf(buf, sizeof buf, "%.10g", x);
-    line.append(buf, static_cast<std::size_t>(n > 0 ? n : 0));
-}
+void append_number(std::string& line, double x) { line += general(x, kCsvDigits); }
 
-std::string short_number(double x) {
-    char buf[32];
-    std::snprintf(buf, sizeof buf, "%g", x);
-    return buf;
-}
+std::string short_number(double x) { return general(x, 6); }
 
 // A duration given in hours, in the unit that reads best: "0.01 s", "15 min", "24 h".
 std::string readable_duration(double h) {

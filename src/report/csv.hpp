@@ -13,6 +13,9 @@
 
 namespace plateau::report {
 
+// Significant digits of every number in a CSV file.
+inline constexpr int kCsvDigits = 10;
+
 // A CSV column name: name, '_', unit with '/' -> "_per_", '*' -> '_', '^' dropped, '%' -> "pct", spaces
 // dropped ("conc", "mg/L" -> "conc_mg_per_L"). No unit: the name alone.
 std::string csv_column_name(std::string_view name, std::string_view unit_text);

@@ -44,6 +44,14 @@ std::string hours(std::optional<double> h, int decimals) {
     return buf;
 }
 
+std::string general(double v, int digits) {
+    char buf[64];
+    std::snprintf(buf, sizeof buf, "%.*g", digits, v);
+    return buf;
+}
+
+std::string tolerance_text(double tol) { return general(tol, 6); }
+
 std::string percent(double fraction) {
     char buf[64];
     std::snprintf(buf, sizeof buf, "%.1f %%", 100.0 * fraction);

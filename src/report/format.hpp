@@ -26,6 +26,13 @@ std::string hours(std::optional<double> h, int decimals = 2);
 // "day 2 14:05" (calendar days: day 1 is the day of t = 0, and days change at midnight; minutes rounded).
 std::string day_clock(double t, double start_clock);
 
+// The shortest form with `digits` significant digits, as C's %g ("0.1", "1e-10", "12345.7"): what the JSON,
+// the CSV files and the command summaries print (JSON with 12 digits, CSV with 10).
+std::string general(double v, int digits);
+
+// An integration tolerance as every header shows it: "1e-10", "2.5e-08".
+std::string tolerance_text(double tol);
+
 // Percentage with one decimal ("63.4 %").
 std::string percent(double fraction);
 

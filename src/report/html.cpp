@@ -1,6 +1,7 @@
 #include "report/html.hpp"
 
 #include <algorithm>
+#include <cctype>
 #include <cmath>
 #include <optional>
 
@@ -8,8 +9,10 @@
 #include "plot/plot.hpp"
 #include "plot/sample.hpp"
 #include "report/caution.hpp"
+#include "report/compare_model.hpp"
 #include "report/cycle_words.hpp"
 #include "report/format.hpp"
+#include "report/run_model.hpp"
 
 namespace plateau::report {
 
@@ -17,9 +20,7 @@ namespace {
 
 std::string esc(std::string_view s) { return xml_escape(s); }
 
-const model::Output& output_of(const Candidate& c) {
-    return c.regimen.model.outputs[static_cast<std::size_t>(c.exposure.output)];
-}
+using verdict::output_of;
 
 // Times a drawn curve must pass through exactly: every step boundary (doses, infusion ends, lags) and every
 // interior peak or trough; the evenly spaced points fill in between.
@@ -70,9 +71,9 @@ void table_rows(std::ostream& out, const std::vector<Candidate>& cs) {
     out << "<table><thead><tr><th>Figure</th><th>Unit</th>";
     for (const auto& c : cs) out << "<th>" << esc(c.letter) << "</th>";
     out << "</tr></thead><tbody>\n";
-    for (const auto& r : comparison_rows(cs)) {
+    for (const auto& r : comparison_table(cs).rows) {
         out << "<tr><td>" << esc(r.label) << "</td><td class=\"t\">" << esc(r.unit) << "</td>";
-        for (const auto& cell : r.cells) out << "<td>" << esc(cell) << "</td>";
+        for (std::size_t i = 0; i < r.cells.size(); ++i) out << "<td>" << esc(shown(r, i)) << "</td>";
         out << "</tr>\n";
     }
     out << "</tbody></table>\n";
@@ -180,57 +181,84 @@ void inputs(std::ostream& out, const Candidate& c) {
     out << "</tbody></table>\n";
 }
 
-// The figures of one regimen as a two-column table (the terminal's exposure block, for the page).
-void figures_table(std::ostream& out, const Candidate& c) {
-    const auto& o = output_of(c);
+// The figures of one regimen as a two-column table (the terminal's exposure block, for the page), from the
+// regimen's report model.
+void figures_table(std::ostream& out, const Candidate& c, const Node& doc) {
     const auto& e = c.exposure;
-    const std::string u = o.unit_text, au = auc_unit(o.unit_text);
-    auto v = [&](double x) { return num(in_output_unit(o, x), 6) + " " + u; };
+    const std::string u = doc.at("unit").value.text, au = doc.at("auc_unit").value.text;
+    auto num_of = [](const Node& n) { return n.value.number; };
+    auto v = [&](const Node& n) { return num(num_of(n), 6) + " " + u; };
     auto t = [](double h) { return num(h, 6) + " h"; };
     std::vector<std::pair<std::string, std::string>> rows;
-    rows.push_back({"Peak", v(e.peak.value) + " at " + t(e.peak.time)});
-    rows.push_back({"Minimum after the first peak", v(e.minimum.value) + " at " + t(e.minimum.time)});
-    rows.push_back({"AUC " + num(e.start, 6) + "–" + num(e.end, 6) + " h", num(in_output_unit(o, e.auc), 6) + " " + au});
-    for (const auto& w : e.auc_windows)
-        rows.push_back({"AUC " + num(w.from, 6) + "–" + num(w.to, 6) + " h", num(in_output_unit(o, w.value), 6) + " " + au});
-    if (e.above) {
-        rows.push_back({"Time above " + v(*e.above), num(e.above_hours, 5) + " h (" + percent(e.above_fraction) + " of the horizon)"});
-        rows.push_back({"First above " + v(*e.above), e.first_reached ? "at " + t(*e.first_reached) : "never"});
-        rows.push_back({"Crossings of the threshold", std::to_string(e.crossings.size())});
+    for (const char* k : {"peak", "minimum"}) {
+        const Node& g = doc.at(k);
+        rows.push_back({g.label, v(g.at("value")) + " at " + t(num_of(g.at("time")))});
     }
-    if (e.window) {
-        rows.push_back({"Time inside the window", num(e.window_hours, 5) + " h (" + percent(e.window_fraction) + ")"});
-        rows.push_back({"Time above the window", num(e.above_window_hours, 5) + " h (" + percent(e.above_window_fraction) + ")"});
+    const Node& auc = doc.at("auc");
+    rows.push_back({"AUC " + num(num_of(auc.at("from")), 6) + "–" + num(num_of(auc.at("to")), 6) + " h",
+                    num(num_of(auc.at("value")), 6) + " " + au});
+    for (const Node& w : doc.at("auc_windows").items)
+        rows.push_back({"AUC " + num(num_of(w.at("from")), 6) + "–" + num(num_of(w.at("to")), 6) + " h",
+                        num(num_of(w.at("value")), 6) + " " + au});
+    if (const Node* above = doc.find("above")) {
+        const std::string threshold = v(above->at("threshold"));
+        rows.push_back({above->at("hours").label + " " + threshold,
+                        shown(above->at("hours")) + " h (" + shown(above->at("fraction")) + " of the horizon)"});
+        const Node& first = above->at("first_reached");
+        rows.push_back({first.label + " " + threshold, first.value.present() ? "at " + t(num_of(first)) : shown(first)});
+        rows.push_back({doc.at("crossings").label + " of the threshold", std::to_string(doc.at("crossings").items.size())});
     }
-    if (e.steady && !e.steady->found) rows.push_back({"Steady state", e.steady->why_not});
-    if (e.steady && e.steady->found) {
+    if (const Node* window = doc.find("window")) {
+        rows.push_back({window->at("hours").label + " the window",
+                        shown(window->at("hours")) + " h (" + shown(window->at("fraction")) + ")"});
+        rows.push_back({window->at("above_high_hours").label + " the window",
+                        shown(window->at("above_high_hours")) + " h (" + shown(window->at("above_high_fraction")) + ")"});
+    }
+    if (const Node* ss = doc.find("steady_state")) {
         const auto& st = *e.steady;
-        const std::string noun = cycle_noun(st);
-        rows.push_back({"Steady state: pattern", cycle_description(st, c.regimen.model)});
-        if (st.constant) {
-            rows.push_back({"Steady state: level", v(st.peak.value) + ", constant"});
-        } else {
-            rows.push_back({"Steady state: peak", v(st.peak.value) + ", " + t(st.peak.time) + " " + after_cycle_start(st)});
-            if (multi_dose_cycle(st)) {
-                rows.push_back({"Steady state: trough (lowest before a dose)",
-                                v(st.trough) + ", before the dose at +" + t(st.trough_time)});
-                for (const auto& tr : st.troughs)
-                    rows.push_back({"Steady state: before the dose at +" + t(tr.offset), v(tr.value)});
+        if (const Node* reason = ss->find("reason")) rows.push_back({ss->label, reason->value.text});
+        if (st.found) {
+            const std::string noun = cycle_noun(st);
+            const std::string head = ss->label + ": ";
+            auto lower = [](std::string l) {
+                // "Peak" -> "peak", but "AUC per" stays.
+                if (l.size() > 1 && std::isupper(static_cast<unsigned char>(l[0])) && std::islower(static_cast<unsigned char>(l[1])))
+                    l[0] = static_cast<char>(std::tolower(static_cast<unsigned char>(l[0])));
+                return l;
+            };
+            auto label = [&](const char* k) { return head + lower(ss->at(k).label); };
+            rows.push_back({head + "pattern", cycle_description(st, c.regimen.model)});
+            if (ss->at("constant").value.flag) {
+                rows.push_back({head + "level", v(ss->at("peak")) + ", constant"});
             } else {
-                rows.push_back({"Steady state: trough", v(st.trough)});
+                rows.push_back({label("peak"), v(ss->at("peak")) + ", " + t(num_of(ss->at("peak_time"))) + " " +
+                                                   after_cycle_start(st)});
+                if (multi_dose_cycle(st)) {
+                    rows.push_back({label("trough") + " (lowest before a dose)",
+                                    v(ss->at("trough")) + ", before the dose at +" + t(num_of(ss->at("trough_time")))});
+                    for (const Node& tr : ss->at("troughs").items)
+                        rows.push_back({head + "before the dose at +" + t(num_of(tr.at("offset"))), v(tr.at("value"))});
+                } else {
+                    rows.push_back({label("trough"), v(ss->at("trough"))});
+                }
+                if (st.dips_below_trough())
+                    rows.push_back({label("minimum"), v(ss->at("minimum")) + ", " + t(num_of(ss->at("minimum_time"))) +
+                                                          " " + after_cycle_start(st)});
             }
-            if (st.dips_below_trough())
-                rows.push_back({"Steady state: lowest", v(st.minimum.value) + ", " + t(st.minimum.time) + " " + after_cycle_start(st)});
+            rows.push_back({label("average"), v(ss->at("average"))});
+            rows.push_back({label("auc") + " " + noun + " / 24 h", num(num_of(ss->at("auc")), 6) + " / " +
+                                                                      num(num_of(ss->at("auc24")), 6) + " " + au});
+            if (ss->find("above_fraction"))
+                rows.push_back({label("above_hours") + " the threshold", shown(ss->at("above_fraction")) + " of each " + noun});
+            if (ss->find("window_fraction"))
+                rows.push_back({label("window_hours"), shown(ss->at("window_fraction")) + " of each " + noun});
+            rows.push_back({ss->at("accumulation").label, shown(ss->at("accumulation"))});
+            auto from = [&](const char* k) {
+                const Node& w = ss->at(k);
+                return w.value.present() ? "from " + t(num_of(w)) : shown(w);
+            };
+            rows.push_back({"Within 10 % / 5 % of steady state", from("within_10pct") + " / " + from("within_5pct")});
         }
-        rows.push_back({"Steady state: average", v(st.average)});
-        rows.push_back({"Steady state: AUC per " + noun + " / 24 h", num(in_output_unit(o, st.auc), 6) + " / " +
-                                                                    num(in_output_unit(o, st.auc24), 6) + " " + au});
-        if (e.above) rows.push_back({"Steady state: time above the threshold", percent(st.above_hours / st.interval) + " of each " + noun});
-        if (e.window) rows.push_back({"Steady state: time in the window", percent(st.window_hours / st.interval) + " of each " + noun});
-        rows.push_back({"Accumulation ratio (AUC)", num(st.accumulation, 5)});
-        rows.push_back({"Within 10 % / 5 % of steady state",
-                        (st.within_10pct ? "from " + t(*st.within_10pct) : std::string("not within the horizon")) + " / " +
-                            (st.within_5pct ? "from " + t(*st.within_5pct) : std::string("not within the horizon"))});
     }
     out << "<h3>Figures</h3>\n<table class=\"small\"><tbody>\n";
     for (const auto& [label, value] : rows)
@@ -238,23 +266,22 @@ void figures_table(std::ostream& out, const Candidate& c) {
     out << "</tbody></table>\n";
 }
 
-void interval_table(std::ostream& out, const Candidate& c) {
-    const auto& o = output_of(c);
-    const auto& e = c.exposure;
-    auto v = [&](double x) { return num(in_output_unit(o, x)); };
-    out << "<h3>Dosing intervals</h3>\n<table class=\"small\"><thead><tr><th>#</th><th>Start (h)</th><th>End (h)</th>"
-        << "<th>Peak (" << esc(o.unit_text) << ")</th><th>at (h)</th><th>Trough</th><th>Minimum</th><th>AUC ("
-        << esc(auc_unit(o.unit_text)) << ")</th>";
-    if (e.above) out << "<th>Above threshold (h)</th>";
-    if (e.window) out << "<th>In window (h)</th>";
+void interval_table(std::ostream& out, const Node& doc) {
+    const bool above = doc.find("above") != nullptr, window = doc.find("window") != nullptr;
+    const Node& ivs = doc.at("intervals");
+    out << "<h3>" << esc(ivs.label) << "</h3>\n<table class=\"small\"><thead><tr><th>#</th><th>Start (h)</th><th>End (h)</th>"
+        << "<th>Peak (" << esc(doc.at("unit").value.text) << ")</th><th>at (h)</th><th>Trough</th><th>Minimum</th><th>AUC ("
+        << esc(doc.at("auc_unit").value.text) << ")</th>";
+    if (above) out << "<th>Above threshold (h)</th>";
+    if (window) out << "<th>In window (h)</th>";
     out << "</tr></thead><tbody>\n";
-    for (std::size_t i = 0; i < e.intervals.size(); ++i) {
-        const auto& iv = e.intervals[i];
-        out << "<tr><td>" << i + 1 << "</td><td>" << num(iv.start, kTimeDigits) << "</td><td>" << num(iv.end, kTimeDigits) << "</td><td>"
-            << v(iv.peak.value) << "</td><td>" << num(iv.peak.time, kTimeDigits) << "</td><td>" << v(iv.trough) << "</td><td>"
-            << v(iv.minimum.value) << "</td><td>" << num(in_output_unit(o, iv.auc), 5) << "</td>";
-        if (e.above) out << "<td>" << num(iv.above_hours, 4) << "</td>";
-        if (e.window) out << "<td>" << num(iv.window_hours, 4) << "</td>";
+    for (std::size_t i = 0; i < ivs.items.size(); ++i) {
+        const Node& iv = ivs.items[i];
+        out << "<tr><td>" << i + 1 << "</td>";
+        for (const char* k : {"start", "end", "peak", "peak_time", "trough", "minimum", "auc"})
+            out << "<td>" << shown(iv.at(k)) << "</td>";
+        if (above) out << "<td>" << shown(iv.at("above_hours")) << "</td>";
+        if (window) out << "<td>" << shown(iv.at("window_hours")) << "</td>";
         out << "</tr>\n";
     }
     out << "</tbody></table>\n";
@@ -299,8 +326,7 @@ void write_html(std::ostream& out, const std::vector<Candidate>& cs, const HtmlO
     }
     const auto& first = cs.front();
     const auto& o = output_of(first);
-    char tol[32];
-    std::snprintf(tol, sizeof tol, "%.0e", opt.tolerance);
+    const std::string tol = tolerance_text(opt.tolerance);
     const std::string models = models_line(cs);
     out << "<p class=\"meta\">" << esc(models.substr(0, 1) == "m" ? "M" + models.substr(1) : models) << " ("
         << esc(first.regimen.model.summary) << (models.rfind("models", 0) == 0 ? ", ..." : "") << "); output <b>" << esc(o.name) << "</b> in " << esc(o.unit_text) << "; integration tolerance " << tol
@@ -316,7 +342,7 @@ void write_html(std::ostream& out, const std::vector<Candidate>& cs, const HtmlO
     out << (cs.size() > 1 ? "<h2>Figures side by side</h2>\n" : "<h2>Key figures</h2>\n");
     table_rows(out, cs);
 
-    const auto checks = target_checks(cs);
+    const auto checks = verdict::target_checks(cs);
     if (!checks.empty()) {
         out << "<h2>Targets</h2>\n<table><thead><tr><th>Target</th>";
         for (const auto& c : cs) out << "<th>" << esc(c.letter) << "</th>";
@@ -332,7 +358,7 @@ void write_html(std::ostream& out, const std::vector<Candidate>& cs, const HtmlO
         }
         out << "</tbody></table>\n";
     }
-    const auto sentences = summary_sentences(cs);
+    const auto sentences = verdict::summary_sentences(cs);
     if (!sentences.empty()) {
         out << "<h2>In plain words</h2>\n<ul class=\"plain\">\n";
         for (const auto& s : sentences) out << "<li>" << esc(s) << "</li>\n";
@@ -356,8 +382,9 @@ void write_html(std::ostream& out, const std::vector<Candidate>& cs, const HtmlO
                "The first interval of the repeating series (after any loading dose) and one interval at steady "
                "state, from the dose.",
                draw);
-        figures_table(out, c);
-        interval_table(out, c);
+        const Node doc = run_model(c.regimen, c.sim, c.exposure, opt.tolerance);
+        figures_table(out, c, doc);
+        interval_table(out, doc);
         inputs(out, c);
         out << "</section>\n";
     }

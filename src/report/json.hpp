@@ -7,6 +7,7 @@
 #include <string_view>
 
 #include "metrics/exposure.hpp"
+#include "report/model.hpp"
 #include "regimen/regimen.hpp"
 #include "sim/simulate.hpp"
 
@@ -16,7 +17,10 @@ struct JsonContext {
     double tolerance = 1e-10;
 };
 
-// One JSON object for one regimen.
+// A report model as JSON: groups as objects, lists as arrays, keys from the model; `indent` levels of two spaces.
+void write_json(std::ostream& out, const Node& document, int indent = 0);
+
+// One JSON object for one regimen (its report model, report/run_model.hpp).
 void write_exposure_json(std::ostream& out, const regimen::Regimen& r, const sim::Simulation& s,
                          const metrics::Exposure& e, const JsonContext& ctx, int indent = 0);
 

@@ -1,14 +1,14 @@
 // The HTML report of a population run and its figures: the bands (median, 25–75 %, 5–95 %) per regimen, and the
 // PTA against the threshold. Self-contained, printable; the caution at the top and the bottom.
 #include <cmath>
-#include <cstdio>
 #include <sstream>
 
 #include "core/escape.hpp"
 #include "report/caution.hpp"
-#include "report/compare.hpp"
 #include "report/format.hpp"
+#include "report/population_model.hpp"
 #include "report/population_report.hpp"
+#include "verdict/verdicts.hpp"
 
 namespace plateau::report {
 
@@ -20,6 +20,8 @@ const model::Output& output_of(const regimen::Regimen& r) {
     const int i = r.targets.output.empty() ? 0 : r.model.output_index(r.targets.output);
     return r.model.outputs[static_cast<std::size_t>(std::max(0, i))];
 }
+
+std::string letter_for(std::size_t r) { return verdict::letter_for(r); }
 
 std::string esc(const std::string& s) { return xml_escape(s); }
 
@@ -104,9 +106,7 @@ std::string population_html(const PopulationRun& p) {
     const std::string caution = "<p class=\"caution\"><strong>Caution.</strong> " + esc(kCaution) + "</p>\n";
     h << caution;
     h << "<h1>Virtual population: " << p.size << " patients, model " << esc(rs.front().model.id) << "</h1>\n";
-    char tol[32];
-    std::snprintf(tol, sizeof tol, "%g", p.tol);
-    h << "<p>Output " << esc(o.name) << " (" << esc(o.unit_text) << "); seed " << p.seed << "; tolerance " << tol
+    h << "<p>Output " << esc(o.name) << " (" << esc(o.unit_text) << "); seed " << p.seed << "; tolerance " << tolerance_text(p.tol)
       << "; " << esc(p.date) << ". Every regimen runs on the same patients.</p>\n";
     h << "<h2>Who</h2>\n";
     if (p.cohort != nullptr) {
@@ -130,69 +130,74 @@ std::string population_html(const PopulationRun& p) {
         h << "<p>No cohort: every patient has the regimen's covariates; only the parameters vary.</p>\n";
     }
     h << "<p>Between-subject variability: " << esc(variability_line(rs.front().model)) << ".</p>\n";
-    h << "<h2>Regimens</h2>\n<table><tr><th></th><th>regimen</th><th>about</th><th>patients with a steady state</th>"
-      << "<th>without</th><th>failed</th></tr>\n";
+    const Node doc = population_model(p);
+    const Node& regs = doc.at("regimens");
+    {
+        const Node& s0 = regs.items.front().at("subjects");
+        h << "<h2>Regimens</h2>\n<table><tr><th></th><th>regimen</th><th>about</th><th>patients " << esc(s0.at("ok").label)
+          << "</th><th>" << esc(s0.at("no_steady_state").label) << "</th><th>" << esc(s0.at("failed").label) << "</th></tr>\n";
+    }
     for (std::size_t r = 0; r < rs.size(); ++r) {
-        const auto& s = p.summaries[r];
+        const Node& s = regs.items[r].at("subjects");
         h << "<tr><td>" << letter_for(r) << "</td><td style=\"text-align:left\">" << esc(rs[r].id) << "</td><td style=\"text-align:left\">"
-          << esc(rs[r].about) << "</td><td>" << s.ok << "</td><td>" << s.no_steady_state << "</td><td>" << s.failed << "</td></tr>\n";
+          << esc(rs[r].about) << "</td><td>" << shown(s.at("ok")) << "</td><td>" << shown(s.at("no_steady_state")) << "</td><td>"
+          << shown(s.at("failed")) << "</td></tr>\n";
     }
     h << "</table>\n";
-    const auto& s0 = p.summaries.front();
-    if (!s0.targets.empty()) {
-        h << "<h2>Probability of target attainment</h2>\n<p>Share of all patients (those without a steady state or "
+    const Node& t0 = regs.items.front().at("targets");
+    if (!t0.items.empty()) {
+        h << "<h2>" << esc(t0.label) << "</h2>\n<p>Share of all patients (those without a steady state or "
              "with a failed run count as not attaining), with the Wilson score 95 % interval.</p>\n<table><tr><th>target</th>";
         for (std::size_t r = 0; r < rs.size(); ++r) h << "<th>" << letter_for(r) << "</th>";
         h << "</tr>\n";
-        for (std::size_t k = 0; k < s0.targets.size(); ++k) {
-            h << "<tr><td>" << esc(s0.targets[k].what) << "</td>";
+        for (std::size_t k = 0; k < t0.items.size(); ++k) {
+            h << "<tr><td>" << esc(shown(t0.items[k].at("what"))) << "</td>";
             for (std::size_t r = 0; r < rs.size(); ++r) {
-                const auto& a = p.summaries[r].targets[k];
-                h << "<td>" << percent(a.pta) << "<br><small>" << percent(a.ci95.first) << " – " << percent(a.ci95.second)
+                const Node& a = regs.items[r].at("targets").items[k];
+                h << "<td>" << shown(a.at("pta")) << "<br><small>" << shown(a.at("ci95/0")) << " – " << shown(a.at("ci95/1"))
                   << "</small></td>";
             }
             h << "</tr>\n";
         }
         h << "</table>\n";
     }
-    h << "<h2>Percentiles over patients</h2>\n";
+    h << "<h2>" << esc(regs.items.front().at("percentiles").label) << "</h2>\n";
     for (std::size_t r = 0; r < rs.size(); ++r) {
         h << "<table><tr><th>" << letter_for(r) << " " << esc(rs[r].id) << "</th>";
         for (double q : population::kPercentiles) h << "<th>" << num(q) << " %</th>";
         h << "<th>n</th></tr>\n";
-        for (const auto& q : p.summaries[r].spreads) {
-            if (q.n == 0) continue;
-            const bool c = q.unit == "conc" || q.unit == "auc";
-            const std::string unit = q.unit == "conc" ? o.unit_text : q.unit == "auc" ? auc_unit(o.unit_text)
-                                     : q.unit == "hours" ? "h" : "% of τ";
-            h << "<tr><td>" << esc(q.label) << " (" << esc(unit) << ")</td>";
-            for (double v : q.values) h << "<td>" << num(c ? in_output_unit(o, v) : v) << "</td>";
-            h << "<td>" << q.n << "</td></tr>\n";
+        for (const Node& f : regs.items[r].at("percentiles").items) {
+            if (f.at("n").value.number == 0) continue;
+            h << "<tr><td>" << esc(label_with_unit(f.label, f.unit)) << "</td>";
+            for (std::size_t j = 1; j < f.items.size(); ++j) h << "<td>" << shown(f.items[j]) << "</td>";
+            h << "<td>" << shown(f.at("n")) << "</td></tr>\n";
         }
         h << "</table>\n";
     }
-    if (!s0.curve.empty()) {
-        h << "<h2>PTA by threshold</h2>\n<table><tr><th>threshold (" << esc(o.unit_text) << ")</th>";
+    const Node& c0 = regs.items.front().at("pta_curve");
+    if (!c0.items.empty()) {
+        h << "<h2>" << esc(c0.label) << "</h2>\n<table><tr><th>threshold (" << esc(o.unit_text) << ")</th>";
         for (std::size_t r = 0; r < rs.size(); ++r) h << "<th>" << letter_for(r) << "</th>";
         h << "</tr>\n";
-        for (std::size_t j = 0; j < s0.curve.size(); ++j) {
-            h << "<tr><td>" << num(in_output_unit(o, s0.curve[j].threshold)) << "</td>";
-            for (std::size_t r = 0; r < rs.size(); ++r) h << "<td>" << percent(p.summaries[r].curve[j].pta) << "</td>";
+        for (std::size_t j = 0; j < c0.items.size(); ++j) {
+            h << "<tr><td>" << shown(c0.items[j].at("threshold")) << "</td>";
+            for (std::size_t r = 0; r < rs.size(); ++r)
+                h << "<td>" << shown(regs.items[r].at("pta_curve").items[j].at("pta")) << "</td>";
             h << "</tr>\n";
         }
         h << "</table>\n";
     }
     if (p.thresholds != nullptr) {
-        h << "<p>Expected attainment over the threshold distribution " << esc(p.thresholds->path)
+        h << "<p>" << esc(regs.items.front().at("expected_attainment").label) << " " << esc(p.thresholds->path)
           << " (cumulative fraction of response):";
         for (std::size_t r = 0; r < rs.size(); ++r)
-            h << " " << letter_for(r) << " " << (p.summaries[r].expected ? percent(*p.summaries[r].expected) : "—") << ";";
+            h << " " << letter_for(r) << " " << shown(regs.items[r].at("expected_attainment")) << ";";
         h << "</p>\n";
     }
     if (plot::gnuplot_available()) {
         h << "<h2>Figures</h2>\n";
         for (std::size_t r = 0; r < rs.size(); ++r) h << "<div class=\"fig\">" << plot::render_svg(band_figure(p, r)) << "</div>\n";
-        if (!s0.curve.empty()) h << "<div class=\"fig\">" << plot::render_svg(pta_figure(p)) << "</div>\n";
+        if (!c0.items.empty()) h << "<div class=\"fig\">" << plot::render_svg(pta_figure(p)) << "</div>\n";
     } else {
         h << "<p>(Figures need gnuplot, which was not found.)</p>\n";
     }

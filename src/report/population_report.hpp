@@ -1,5 +1,6 @@
 // The outputs of `plateau population`: the terminal summary, JSON, one CSV row per subject and regimen, and the
-// HTML section with its figures. Figures are computed in population/; these writers only render them.
+// HTML section with its figures. Figures are computed in population/ and verdict/; the writers render the
+// report model (report/population_model.hpp).
 #pragma once
 
 #include <cstdint>
@@ -26,9 +27,6 @@ struct PopulationRun {
     double tol = 1e-10;
     std::string date;
 };
-
-// "A", "B", ... and the regimen whose first target has the highest PTA (ties: the first), or −1.
-int best_regimen(const PopulationRun& p);
 
 void write_population_text(std::ostream& out, const PopulationRun& p, const std::string& trailer);
 void write_population_json(std::ostream& out, const PopulationRun& p);

@@ -122,8 +122,16 @@ Simulation integrate_events(const model::Model& m, taylor::Stepper& stepper, con
     sim.trajectory = traj::Trajectory(stepper.n_series(), stepper.order());
     choose_storage(sim.trajectory, stepper);
 
+    // The first nc states are amounts; a sensitivity run (sim/sensitivity.cpp) appends opt.sensitivities states
+    // per amount, x[nc + c·m + j], which may take any sign and are zeroed with their amount.
     const std::size_t nc = m.compartments.size();
-    std::vector<double> x(x0.begin(), x0.end()), u(nc, 0.0), coeffs;
+    const std::size_t nx = x0.size();
+    const std::size_t per = static_cast<std::size_t>(std::max(0, opt.sensitivities));
+    auto set_empty = [&](std::vector<double>& v, std::size_t c) {
+        v[c] = 0.0;
+        for (std::size_t j = 0; j < per; ++j) v[nc + c * per + j] = 0.0;
+    };
+    std::vector<double> x(x0.begin(), x0.end()), u(nx, 0.0), coeffs;
     const std::size_t stride = static_cast<std::size_t>(stepper.order()) + 1;
     const long budget = step_budget(opt, static_cast<double>(sim.trajectory.bytes_per_step()));
     sim.budget = budget;
@@ -139,7 +147,8 @@ Simulation integrate_events(const model::Model& m, taylor::Stepper& stepper, con
         double f;
         ~Restore() { s.set_floor(f); }
     } restore{stepper, saved_floor};
-    MassBalance balance(stepper.expander(), x0, opt.tol, opt.check_mass);
+    // A sensitivity run's extra states are not amounts: its balance is not checked (the plain run's is).
+    MassBalance balance(stepper.expander(), x0, opt.tol, opt.check_mass && opt.sensitivities == 0);
     // At each dose time (before its doses) and at the end: a linear model's run out of balance stops here.
     auto balanced = [&](double at) {
         if (balance.check(at, x, sim.mass)) return true;
@@ -155,7 +164,7 @@ Simulation integrate_events(const model::Model& m, taylor::Stepper& stepper, con
         // Apply every event due now (events before 0 are applied at 0).
         while (next < events.size() && !regimen::before(t, events[next].time)) {
             balance.add_bolus(events[next].bolus);
-            for (std::size_t c = 0; c < nc; ++c) {
+            for (std::size_t c = 0; c < nx; ++c) {
                 x[c] += events[next].bolus[c];
                 u[c] += events[next].rate_change[c];
                 // Round-off in summing opposite rate changes must not leave a tiny phantom infusion.
@@ -206,7 +215,7 @@ Simulation integrate_events(const model::Model& m, taylor::Stepper& stepper, con
             balance.add_step(coeffs, stride, static_cast<std::size_t>(stepper.n_series()), h, u);
             ++sim.steps;
             double largest = 0.0;
-            for (std::size_t c = 0; c < nc; ++c) {
+            for (std::size_t c = 0; c < nx; ++c) {
                 double v = 0.0;
                 for (std::size_t k = stride; k-- > 0;) v = v * h + coeffs[c * stride + k];
                 x[c] = v;
@@ -215,9 +224,9 @@ Simulation integrate_events(const model::Model& m, taylor::Stepper& stepper, con
                     sim.failed_at = t + h;
                     return sim;
                 }
-                largest = std::max(largest, std::abs(v));
+                if (c < nc) largest = std::max(largest, std::abs(v));
             }
-            if (emptied >= 0) x[static_cast<std::size_t>(emptied)] = 0.0;
+            if (emptied >= 0) set_empty(x, static_cast<std::size_t>(emptied));
             // Below zero by more than the tolerance allows, from a start at or below zero: no amount can do
             // that, so no figure is reported (the model's rates let an empty compartment lose mass).
             for (std::size_t c = 0; c < nc; ++c)
@@ -240,7 +249,7 @@ Simulation integrate_events(const model::Model& m, taylor::Stepper& stepper, con
                 for (std::size_t c = 0; c < nc; ++c)
                     if (std::abs(x[c]) < empty_below ||
                         (drain_only[c] && u[c] == 0.0 && std::abs(x[c]) > std::abs(coeffs[c * stride])))
-                        x[c] = 0.0;
+                        set_empty(x, c);
             }
             t = lands ? stop : t + h;
         }

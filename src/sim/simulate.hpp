@@ -32,6 +32,8 @@ struct Options {
     // The model's tape (model_tape), when the caller has built it: the steady-state solve then does not build
     // it again (a population builds it once per model). Must be the tape of the model being simulated.
     const taylor::Tape* tape = nullptr;
+    // Sensitivity runs (sim/sensitivity.cpp): number of sensitivity states per compartment, after the amounts.
+    int sensitivities = 0;
 };
 
 // The step budget of a simulation: max_steps, lowered so that the kept polynomials fit in max_bytes.

@@ -4,6 +4,8 @@
 #include <cmath>
 #include <stdexcept>
 
+#include "ops/all.hpp"
+
 namespace plateau::taylor {
 
 namespace {
@@ -94,6 +96,7 @@ void Expander::analyse_linear() {
         if (need[op.r / stride_]) output_code_.push_back(op);
     const std::size_t ns = static_cast<std::size_t>(tape_.n_states);
     a_.assign(ns * ns, 0.0);
+    a_start_.assign(ns + 1, 0);
     c_.assign(ns, 0.0);
     w_.assign(tape_.output_slot.size() * ns, 0.0);
     d_.assign(tape_.output_slot.size(), 0.0);
@@ -111,15 +114,16 @@ void Expander::set_params(std::span<const double> values) {
         switch (in.op) {
             case OpCode::Const: v = in.k; break;
             case OpCode::Param: v = params_[static_cast<std::size_t>(in.a)]; break;
-            case OpCode::Add: v = a + b; break;
-            case OpCode::Sub: v = a - b; break;
-            case OpCode::Mul: v = a * b; break;
-            case OpCode::Div: v = a / b; break;
-            case OpCode::Neg: v = -a; break;
-            case OpCode::Exp: v = std::exp(a); break;
-            case OpCode::Log: v = std::log(a); break;
-            case OpCode::Sqrt: v = std::sqrt(a); break;
-            case OpCode::PowK: v = std::pow(a, b); break;
+            case OpCode::Add: v = ops::Add::value(a, b); break;
+            case OpCode::Sub: v = ops::Sub::value(a, b); break;
+            case OpCode::Mul: v = ops::Mul::value(a, b); break;
+            case OpCode::Div: v = ops::Div::value(a, b); break;
+            case OpCode::Neg: v = ops::Neg::value(a); break;
+            case OpCode::PowK: v = ops::Pow::value(a, b); break;
+#define PLATEAU_VALUE_CASE(T) \
+    case OpCode::T: v = ops::T::value(a); break;
+            PLATEAU_FUNCTIONS(PLATEAU_VALUE_CASE)
+#undef PLATEAU_VALUE_CASE
             default: throw std::logic_error("non-constant op marked constant");
         }
         row(static_cast<std::size_t>(i))[0] = v;
@@ -163,6 +167,19 @@ void Expander::set_params(std::span<const double> values) {
         std::copy(f, f + ns, a_.begin() + static_cast<std::ptrdiff_t>(s * ns));
         c_[s] = f[ns];
     }
+    // The non-zero entries of A by row, in column order: a sum that skips only exact zeros (0·x adds ±0 to a sum
+    // that starts at +0) gives the dense sum bit for bit, and an augmented system (sensitivities) is mostly zeros.
+    a_start_.assign(ns + 1, 0);
+    a_col_.clear();
+    a_val_.clear();
+    for (std::size_t s = 0; s < ns; ++s) {
+        for (std::size_t j = 0; j < ns; ++j)
+            if (a_[s * ns + j] != 0.0) {
+                a_col_.push_back(static_cast<std::uint32_t>(state_row_[j] * stride_));
+                a_val_.push_back(a_[s * ns + j]);
+            }
+        a_start_[s + 1] = a_col_.size();
+    }
     for (std::size_t j = 0; j < tape_.output_slot.size(); ++j) {
         if (!out_affine_[j]) continue;
         const double* f = form_.data() + static_cast<std::size_t>(tape_.output_slot[j]) * w;
@@ -174,70 +191,28 @@ void Expander::set_params(std::span<const double> values) {
 void Expander::eval_order(const std::vector<Op>& code, int n) {
     const std::size_t un = static_cast<std::size_t>(n);
     double* base = coef_.data();
+    const double* inv = inv_.data();
     for (const Op& op : code) {
         double* r = base + op.r;
         const double* a = base + op.a;
         const double* b = base + op.b;
+        // The hot loop calls each operation's inline rule (src/ops/); the constant-operand variants are the
+        // operation's own cheaper forms.
         switch (op.op) {
-            case OpCode::Add: r[un] = a[un] + b[un]; break;
-            case OpCode::Sub: r[un] = a[un] - b[un]; break;
-            case OpCode::Neg: r[un] = -a[un]; break;
-            case OpCode::AddK: r[un] = n == 0 ? a[0] + b[0] : a[un]; break;
-            case OpCode::SubK: r[un] = n == 0 ? a[0] - b[0] : a[un]; break;
-            case OpCode::KSub: r[un] = n == 0 ? a[0] - b[0] : -b[un]; break;
-            case OpCode::MulK: r[un] = a[un] * b[0]; break;
-            case OpCode::Mul: {
-                double v = 0.0;
-                for (std::size_t j = 0; j <= un; ++j) v += a[un - j] * b[j];
-                r[un] = v;
-                break;
-            }
-            case OpCode::Div: {
-                double s = a[un];
-                for (std::size_t j = 1; j <= un; ++j) s -= r[un - j] * b[j];
-                r[un] = s / b[0];
-                break;
-            }
-            case OpCode::Exp:
-                if (n == 0) {
-                    r[0] = std::exp(a[0]);
-                } else {
-                    double v = 0.0;
-                    for (std::size_t j = 1; j <= un; ++j) v += static_cast<double>(j) * a[j] * r[un - j];
-                    r[un] = v * inv_[un];
-                }
-                break;
-            case OpCode::Log:
-                if (n == 0) {
-                    r[0] = std::log(a[0]);
-                } else {
-                    double s = 0.0;
-                    for (std::size_t j = 1; j < un; ++j) s += static_cast<double>(j) * r[j] * a[un - j];
-                    r[un] = (a[un] - s * inv_[un]) / a[0];
-                }
-                break;
-            case OpCode::Sqrt:
-                if (n == 0) {
-                    r[0] = std::sqrt(a[0]);
-                } else {
-                    double s = a[un];
-                    for (std::size_t j = 1; j < un; ++j) s -= r[j] * r[un - j];
-                    r[un] = s / (2.0 * r[0]);
-                }
-                break;
-            case OpCode::PowK: {
-                const double alpha = b[0];
-                if (n == 0) {
-                    r[0] = std::pow(a[0], alpha);
-                } else {
-                    const double dn = static_cast<double>(n);
-                    double s = 0.0;
-                    for (std::size_t j = 0; j < un; ++j)
-                        s += (dn * alpha - static_cast<double>(j) * (alpha + 1.0)) * a[un - j] * r[j];
-                    r[un] = s / (dn * a[0]);
-                }
-                break;
-            }
+            case OpCode::Add: ops::Add::series(r, a, b, un); break;
+            case OpCode::Sub: ops::Sub::series(r, a, b, un); break;
+            case OpCode::Neg: ops::Neg::series(r, a, un); break;
+            case OpCode::AddK: ops::Add::series_k(r, a, b, un); break;
+            case OpCode::SubK: ops::Sub::series_k(r, a, b, un); break;
+            case OpCode::KSub: ops::Sub::series_ka(r, a, b, un); break;
+            case OpCode::MulK: ops::Mul::series_k(r, a, b, un); break;
+            case OpCode::Mul: ops::Mul::series(r, a, b, un); break;
+            case OpCode::Div: ops::Div::series(r, a, b, un); break;
+            case OpCode::PowK: ops::Pow::series(r, a, b, un); break;
+#define PLATEAU_SERIES_CASE(T) \
+    case OpCode::T: ops::T::series(r, a, un, inv); break;
+            PLATEAU_FUNCTIONS(PLATEAU_SERIES_CASE)
+#undef PLATEAU_SERIES_CASE
             default: break;  // Const, Param (constant), State, Time, DivK (decoded away): never here
         }
     }
@@ -272,9 +247,8 @@ void Expander::expand_linear(std::span<const double> x0, std::span<const double>
     for (std::size_t n = 0; n < static_cast<std::size_t>(order_); ++n) {
         const double inv = inv_[n + 1];
         for (std::size_t s = 0; s < ns; ++s) {
-            const double* a = a_.data() + s * ns;
             double f = 0.0;
-            for (std::size_t j = 0; j < ns; ++j) f += a[j] * base[state_row_[j] * stride_ + n];
+            for (std::size_t k = a_start_[s]; k < a_start_[s + 1]; ++k) f += a_val_[k] * base[a_col_[k] + n];
             if (n == 0) f += c_[s] + (u.empty() ? 0.0 : u[s]);
             base[state_row_[s] * stride_ + n + 1] = f * inv;
         }

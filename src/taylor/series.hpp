@@ -83,6 +83,9 @@ private:
     std::vector<std::uint8_t> affine_;     // per slot: affine in the states with constant coefficients
     std::vector<std::uint8_t> out_affine_; // per output
     std::vector<double> a_, c_;            // A (n_states × n_states, row-major), c (n_states)
+    std::vector<std::size_t> a_start_;     // A's non-zero entries: row s is [a_start_[s], a_start_[s + 1])
+    std::vector<std::uint32_t> a_col_;     // offset of the column's state row in coef_
+    std::vector<double> a_val_;
     std::vector<double> w_, d_;            // W (n_outputs × n_states), d (n_outputs)
     std::vector<double> form_;             // scratch: affine forms of every slot, (n_states + 1) each
 };

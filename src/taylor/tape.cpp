@@ -143,9 +143,10 @@ public:
                     return constant(-tape_.code[static_cast<std::size_t>(a)].k);
                 return unary(OpCode::Neg, a);
             }
-            case Op::Exp: return unary(OpCode::Exp, build(*n.a));
-            case Op::Log: return unary(OpCode::Log, build(*n.a));
-            case Op::Sqrt: return unary(OpCode::Sqrt, build(*n.a));
+#define PLATEAU_BUILD_CASE(T) \
+    case Op::T: return unary(OpCode::T, build(*n.a));
+            PLATEAU_FUNCTIONS(PLATEAU_BUILD_CASE)
+#undef PLATEAU_BUILD_CASE
             case Op::Pow: {
                 int base = build(*n.a);
                 int e = build(*n.b);

@@ -30,7 +30,9 @@ enum class OpCode : std::uint8_t {
     KSub,      // constant slot a − slot b
     MulK,      // slot a × constant slot b
     DivK,      // slot a ÷ constant slot b
-    Exp, Log, Sqrt,
+#define PLATEAU_OPCODE(T) T,
+    PLATEAU_FUNCTIONS(PLATEAU_OPCODE)  // functions of one argument (ops/list.hpp): slot a
+#undef PLATEAU_OPCODE
     PowK,      // slot a ^ constant slot b (b's order-0 value)
 };
 

@@ -30,7 +30,7 @@ namespace {
 
 // Number of sign changes in a coefficient sequence, ignoring zeros and coefficients negligible against the
 // largest one (round-off noise must not make a root appear).
-int sign_variations(const std::vector<double>& a) {
+int sign_variations(std::span<const double> a) {
     double big = 0.0;
     for (double x : a) big = std::max(big, std::abs(x));
     const double floor = big * 1e-15;
@@ -45,24 +45,34 @@ int sign_variations(const std::vector<double>& a) {
 }
 
 // In place: q(x) -> q(x + 1) (Taylor shift by one), O(n^2) synthetic division.
-void shift_by_one(std::vector<double>& q) {
+void shift_by_one(std::span<double> q) {
     const std::size_t n = q.size();
     for (std::size_t i = 0; i + 1 < n; ++i)
         for (std::size_t k = n - 1; k-- > i;) q[k] += q[k + 1];
 }
 
 // Coefficients of (x+1)^n q(1/(x+1)): reverse, then shift by one. Its sign variations bound the roots in (0,1).
-int variations_on_unit(const std::vector<double>& q) {
-    std::vector<double> r(q.rbegin(), q.rend());
+// `r` is scratch of q's size.
+int variations_on_unit(std::span<const double> q, std::span<double> r) {
+    std::reverse_copy(q.begin(), q.end(), r.begin());
     shift_by_one(r);
     return sign_variations(r);
 }
+
+// Scratch for the isolation, reused by every call on this thread (no allocation once it has grown): three
+// polynomials per bisection depth (the two halves and the variation test's copy).
+constexpr int kMaxDepth = 48;
+thread_local std::vector<double> scratch;
 
 struct Finder {
     std::span<const double> c;  // original polynomial in τ
     double level;
     double h;
     std::vector<double> roots;
+    std::size_t n = 0;  // coefficients of the unit-interval polynomial
+    std::span<double> slot(int depth, int which) const {
+        return {scratch.data() + (static_cast<std::size_t>(depth) * 3 + static_cast<std::size_t>(which)) * n, n};
+    }
 
     double f(double tau) const { return horner(c, tau) - level; }
 
@@ -89,40 +99,48 @@ struct Finder {
         if (fbest <= 1e-12 * magnitude) roots.push_back(best);
     }
 
-    // q is the polynomial on the unit interval that maps to τ ∈ [lo, lo + width].
-    void isolate(std::vector<double> q, double lo, double width, int depth, double magnitude) {
-        const int v = variations_on_unit(q);
+    // q is the polynomial on the unit interval that maps to τ ∈ [lo, lo + width]; it lives in scratch at this
+    // depth, and the halves go to the next depth's slots.
+    void isolate(std::span<const double> q, double lo, double width, int depth, double magnitude) {
+        const int v = variations_on_unit(q, slot(depth, 2));
         if (v == 0) return;
         if (v == 1 && refine(lo, lo + width)) return;
-        if (depth >= 48) {
+        if (depth >= kMaxDepth) {
             if (!refine(lo, lo + width)) settle(lo, lo + width, magnitude);
             return;
         }
         // Left half: q(x/2); right half: q((x+1)/2) = left half shifted by one.
-        std::vector<double> left = q;
+        const std::span<double> left = slot(depth + 1, 0), right = slot(depth + 1, 1);
         double scale = 1.0;
-        for (double& a : left) { a *= scale; scale *= 0.5; }
-        std::vector<double> right = left;
+        for (std::size_t k = 0; k < n; ++k) {
+            left[k] = q[k] * scale;
+            scale *= 0.5;
+        }
+        std::copy(left.begin(), left.end(), right.begin());
         shift_by_one(right);
         const double half = 0.5 * width;
-        isolate(std::move(left), lo, half, depth + 1, magnitude);
+        isolate(left, lo, half, depth + 1, magnitude);
         // A simple root on the midpoint lies in neither open half: take it when p − level is round-off small
         // there and the slope is not (near a touch, |p − level| is tiny over a wider stretch).
         const double m = lo + half;
         if (right.front() == 0.0 ||
             (std::abs(f(m)) <= 4e-16 * magnitude && std::abs(horner_derivative(c, m)) * h >= 1e-6 * magnitude))
             roots.push_back(m);
-        isolate(std::move(right), lo + half, half, depth + 1, magnitude);
+        isolate(right, lo + half, half, depth + 1, magnitude);
     }
 };
 
-std::vector<double> unit_polynomial(std::span<const double> c, double level, double h) {
-    std::vector<double> q(c.begin(), c.end());
+// p(h·x) − level into q (c's size); returns its size without trailing zero coefficients.
+std::size_t unit_polynomial(std::span<const double> c, double level, double h, double* q) {
     double hk = 1.0;
-    for (double& a : q) { a *= hk; hk *= h; }
-    if (!q.empty()) q[0] -= level;
-    while (q.size() > 1 && q.back() == 0.0) q.pop_back();
-    return q;
+    for (std::size_t k = 0; k < c.size(); ++k) {
+        q[k] = c[k] * hk;
+        hk *= h;
+    }
+    q[0] -= level;
+    std::size_t n = c.size();
+    while (n > 1 && q[n - 1] == 0.0) --n;
+    return n;
 }
 
 }  // namespace
@@ -144,11 +162,14 @@ std::vector<double> roots_in(std::span<const double> c, double level, double h) 
     if (!(h > 0.0) || c.empty()) return {};
     if (no_root_possible(c, level, h)) return {};
     Finder fd{c, level, h, {}};
-    std::vector<double> q = unit_polynomial(c, level, h);
-    if (q.size() <= 1) return {};  // constant: no isolated roots
+    const std::size_t need = static_cast<std::size_t>(kMaxDepth + 1) * 3 * c.size();
+    if (scratch.size() < need) scratch.resize(need);
+    fd.n = unit_polynomial(c, level, h, scratch.data());
+    if (fd.n <= 1) return {};  // constant: no isolated roots
+    const std::span<const double> q{scratch.data(), fd.n};  // slot(0, 0)
     double magnitude = 0.0;
     for (double a : q) magnitude += std::abs(a);
-    fd.isolate(std::move(q), 0.0, h, 0, magnitude);
+    fd.isolate(q, 0.0, h, 0, magnitude);
     auto& r = fd.roots;
     r.erase(std::remove_if(r.begin(), r.end(), [h](double x) { return !(x > 0.0 && x < h); }), r.end());
     std::sort(r.begin(), r.end());

@@ -144,6 +144,6 @@ TEST_CASE("cli: the binary says plainly when an option is given twice or misspel
 
     r = run_binary("rnu bolus-single.toml");
     CHECK(r.code == 1);
-    CHECK(r.err == "error: unknown command 'rnu'; expected one of: run, compare, population, check, models, dose; did you mean 'run'?\n"
+    CHECK(r.err == "error: unknown command 'rnu'; expected one of: run, compare, population, check, models, dose, fit; did you mean 'run'?\n"
                    "(run 'plateau --help' for usage)\n");
 }

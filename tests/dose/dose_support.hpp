@@ -53,7 +53,7 @@ inline report::Candidate measure_at(const Searched& s, const dose::Shape& shape,
 inline bool all_met(const report::Candidate& c) {
     const auto& r = c.regimen;
     const int oi = r.targets.output.empty() ? 0 : r.model.output_index(r.targets.output);
-    for (const auto& v : report::verdicts(r.targets, r.model.outputs[static_cast<std::size_t>(oi)], c.exposure))
+    for (const auto& v : verdict::verdicts(r.targets, r.model.outputs[static_cast<std::size_t>(oi)], c.exposure))
         if (v.met != true) return false;
     return true;
 }

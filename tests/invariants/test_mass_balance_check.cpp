@@ -26,7 +26,8 @@ const std::string kSource = PLATEAU_SOURCE_DIR;
 
 std::vector<std::string> shipped_regimens() {
     std::vector<std::string> out;
-    for (const auto& e : fs::directory_iterator(kSource + "/regimens")) out.push_back(e.path().string());
+    for (const auto& e : fs::directory_iterator(kSource + "/regimens"))
+        if (e.path().extension() == ".toml") out.push_back(e.path().string());  // levels files live there too
     for (const auto& d : fs::directory_iterator(kSource + "/examples"))
         if (d.is_directory())
             for (const auto& e : fs::directory_iterator(d.path()))

@@ -1,5 +1,5 @@
 #!/usr/bin/env bash
-# The MPI population test: the same small population on 1, 2 and 3 processes must give byte for byte the JSON,
+# The MPI population test (population and dose --pta): the same small population on 1, 2 and 3 processes must give byte for byte the JSON,
 # CSV and report of the reference run (a plateau built without MPI, or else the MPI binary run as one process),
 # and a bad input must be reported once with exit code 1.
 # Usage: tests/mpi/run.sh MPI_PLATEAU [REFERENCE_PLATEAU] [MPIRUN]
@@ -46,6 +46,22 @@ for k in 1 2 3; do
   cmp "$work/fref.csv" "$work/f$k.csv" || fail "fault case, K=$k: the CSV differs"
 done
 echo "mpi test: one subject failing on process 1 is counted, same outputs for K = 1, 2, 3"
+
+# The dose search over virtual patients: the same JSON, summary and written regimen for K = 1, 2, 3 (23 patients,
+# two candidates, so the shares differ in size and every process searches both).
+dose=(dose regimens/zelmarin-pop-q8h-4h.toml --cohort cohorts/zelmarin-adults.toml --pta 80% --size 23 --seed 6
+      --threads 2 --intervals 8h,12h --round 250mg --above-for 50%)
+"$ref_bin" "${dose[@]}" --json "$work/dref.json" --write "$work/dref.toml" > "$work/dref.txt"
+grep -q "reaches 80.0 %" "$work/dref.txt" || fail "dose: the reference run found no population dose"
+for k in 1 2 3; do
+  "${launch[@]}" -np $k "$mpi_bin" "${dose[@]}" --json "$work/d$k.json" --write "$work/d$k.toml" > "$work/d$k.txt" \
+    2> "$work/d$k.err" || fail "dose, K=$k exited with $? ($(cat "$work/d$k.err"))"
+  sed -i "s|/d$k\.|/dref.|" "$work/d$k.txt"
+  for f in json toml txt; do
+    cmp "$work/dref.$f" "$work/d$k.$f" || fail "dose, K=$k: the $f output differs from the single-process run"
+  done
+done
+echo "mpi test: dose --pta gives the single-process JSON, summary and written regimen for K = 1, 2, 3"
 
 # A bad input: the usual message, once, and exit code 1 (from mpirun, so from every process).
 set +e

@@ -11,7 +11,7 @@
 #include "population/draw.hpp"
 #include "population/reduce.hpp"
 #include "population/run.hpp"
-#include "report/targets.hpp"
+#include "verdict/verdicts.hpp"
 #include "../support/temp_dir.hpp"
 
 using namespace plateau;
@@ -69,7 +69,7 @@ double cl_star() {
 
 population::RegimenSummary summary_of(const regimen::Regimen& r, const population::Result& res, std::size_t k) {
     std::vector<std::pair<std::string, std::string>> kinds;
-    for (const auto& v : report::verdicts(r.targets, r.model.outputs[0], metrics::Exposure{})) kinds.emplace_back(v.kind, v.what);
+    for (const auto& v : verdict::verdicts(r.targets, r.model.outputs[0], metrics::Exposure{})) kinds.emplace_back(v.kind, v.what);
     return population::summarize(res.figures[k], res.bands[k], population::Setup{}.band_points, kinds, {}, nullptr);
 }
 

@@ -88,7 +88,7 @@ inline std::vector<report::Candidate> candidates(const std::vector<std::string>&
     std::vector<report::Candidate> cs;
     for (std::size_t i = 0; i < regimens.size(); ++i) {
         cs.push_back(cli::evaluate(cli::load(regimens[i], {}, {}), so, {}));
-        cs.back().letter = report::letter_for(i);
+        cs.back().letter = verdict::letter_for(i);
     }
     return cs;
 }

@@ -9,6 +9,7 @@
 
 #include "json_mini.hpp"
 #include "report/caution.hpp"
+#include "report/compare_model.hpp"
 #include "report/format.hpp"
 #include "report_support.hpp"
 
@@ -83,7 +84,7 @@ TEST_CASE("report: comparison table cells are the JSON figures rounded as displa
     const auto regimens = demo_regimens();
     const json::Value all = compare_json(regimens, dir);
     const auto cs = candidates(regimens);
-    const auto rows = report::comparison_rows(cs);
+    const auto rows = report::comparison_table(cs).rows;
     REQUIRE(rows.size() == 14);  // every row applies: all four repeat, have a threshold and a window (the worst
                                  // day is day 1 for each, so that row is left out)
 
@@ -140,14 +141,14 @@ TEST_CASE("report: comparison table cells are the JSON figures rounded as displa
             // 1 g every 8 h and 3 g over each 24 h are both 3000 mg/day (computed from the regimen files); the
             // JSON has no such figure.
             CHECK(row.unit == "mg/day");
-            for (const auto& cell : row.cells) CHECK(cell == "3000");
+            for (std::size_t i = 0; i < row.cells.size(); ++i) CHECK(report::shown(row, i) == "3000");
             continue;
         }
         const auto it = expected.find(row.label);
         REQUIRE(it != expected.end());  // a new row needs its JSON counterpart here
         for (std::size_t i = 0; i < regimens.size(); ++i) {
             INFO("regimen " << cs[i].letter << " " << regimens[i]);
-            CHECK(row.cells[i] == it->second(json::at(all, "regimens/" + std::to_string(i))));
+            CHECK(report::shown(row, i) == it->second(json::at(all, "regimens/" + std::to_string(i))));
         }
     }
 }
@@ -156,16 +157,16 @@ TEST_CASE("report: continuous infusion figures in the table match the closed for
     // 3 g per 24 h into CL = 8 L/h with fu = 0.8: free Css = fu·R/CL = 0.8 · 125 / 8 = 12.5 mg/L, peak = trough
     // = average, and AUC24 = 300 mg·h/L (computed from the closed form).
     const auto cs = candidates({source_path("regimens/zelmarin-continuous.toml")});
-    const auto f = report::figures_of(cs.front());
+    const auto f = verdict::figures_of(cs.front());
     REQUIRE(f.ss_peak);
     CHECK(*f.ss_peak == Approx(12.5).epsilon(1e-9));
     CHECK(*f.ss_trough == Approx(12.5).epsilon(1e-9));
     CHECK(*f.ss_average == Approx(12.5).epsilon(1e-9));
     CHECK(*f.auc24_ss == Approx(300.0).epsilon(1e-9));
     CHECK(f.dose_per_day == Approx(3000.0).epsilon(1e-12));
-    for (const auto& row : report::comparison_rows(cs)) {
-        if (row.label == "Steady-state peak" || row.label == "Steady-state trough") CHECK(row.cells[0] == "12.5");
-        if (row.label == "AUC24, steady state") CHECK(row.cells[0] == "300");
+    for (const auto& row : report::comparison_table(cs).rows) {
+        if (row.key == "ss_peak" || row.key == "ss_trough") CHECK(report::shown(row, 0) == "12.5");
+        if (row.key == "ss_auc24") CHECK(report::shown(row, 0) == "300");
     }
 }
 

@@ -8,6 +8,7 @@
 #include <vector>
 
 #include "report/caution.hpp"
+#include "report/compare_model.hpp"
 #include "report_support.hpp"
 
 using namespace plateau;
@@ -92,7 +93,7 @@ std::string tag_problem(const std::string& html) {
 // The text of a comparison row as html.cpp writes it.
 std::string row_html(const report::Row& r) {
     std::string s = "<tr><td>" + html_escape(r.label) + "</td><td class=\"t\">" + html_escape(r.unit) + "</td>";
-    for (const auto& c : r.cells) s += "<td>" + html_escape(c) + "</td>";
+    for (std::size_t i = 0; i < r.cells.size(); ++i) s += "<td>" + html_escape(report::shown(r, i)) + "</td>";
     return s + "</tr>";
 }
 
@@ -157,7 +158,7 @@ TEST_CASE("report: the HTML comparison report is balanced, self-contained and co
 
     // The comparison table, row by row, with the same cells as the terminal table.
     const auto cs = candidates(regimens);
-    const auto rows = report::comparison_rows(cs);
+    const auto rows = report::comparison_table(cs).rows;
     REQUIRE_FALSE(rows.empty());
     CHECK(html.find("<th>Figure</th><th>Unit</th><th>A</th><th>B</th><th>C</th><th>D</th>") != std::string::npos);
     for (const auto& row : rows) {
@@ -239,7 +240,7 @@ TEST_CASE("report: without gnuplot the HTML report is still written, with a note
     CHECK(count_of(html, "<figure>") == 1 + regimens.size());
     CHECK(count_of(html, html_escape(report::kCaution)) == 2);
     // The numbers do not depend on gnuplot.
-    for (const auto& row : report::comparison_rows(candidates(regimens))) CHECK(html.find(row_html(row)) != std::string::npos);
+    for (const auto& row : report::comparison_table(candidates(regimens)).rows) CHECK(html.find(row_html(row)) != std::string::npos);
 }
 
 // gnuplot missing or failing is a request that cannot be met, like a bad option: a plain "error: ..." and

@@ -1,4 +1,5 @@
-// Whether a regimen meets the targets its [targets] table (or the command line) sets, judged at steady state.
+// Whether a regimen meets its targets, judged at steady state, and the one set of targets a comparison judges
+// every regimen against. Computed here; report/ only shows the result.
 #pragma once
 
 #include <optional>
@@ -8,7 +9,7 @@
 #include "metrics/exposure.hpp"
 #include "regimen/regimen.hpp"
 
-namespace plateau::report {
+namespace plateau::verdict {
 
 struct Verdict {
     std::string kind;          // "above", "window", "auc24"
@@ -21,4 +22,12 @@ struct Verdict {
 // the range. In that order, for the targets that are set.
 std::vector<Verdict> verdicts(const regimen::Targets& t, const model::Output& o, const metrics::Exposure& e);
 
-}  // namespace plateau::report
+// "A", "B", ..., "Z", "AA", ...: how regimens are named in every comparison.
+std::string letter_for(std::size_t i);
+
+// One set of targets for a comparison: each kind (threshold with its share, window, AUC24) from the first
+// regimen that sets it. Applies it to every regimen before measuring and returns a note for each regimen whose
+// own file asked for something else.
+std::vector<std::string> unify_targets(std::vector<regimen::Regimen>& rs);
+
+}  // namespace plateau::verdict
