@@ -37,18 +37,25 @@ void MassBalance::add_step(std::span<const double> coeffs, std::size_t stride, s
         integral_[j] += s * h;
         if (!u.empty()) infused_[j] += u[j] * h;
     }
-    for (std::size_t s = 0; s < n_series; ++s) largest_ = std::max(largest_, std::abs(coeffs[s * stride]));
+    double n = 0.0;  // the step rule's scale N: the largest series value at the step's start
+    for (std::size_t s = 0; s < n_series; ++s) n = std::max(n, std::abs(coeffs[s * stride]));
+    largest_ = std::max(largest_, n);
+    scale_sum_ += 2.0 * n;  // the start of this step and the end of the one before
     elapsed_ += h;
 }
 
-bool MassBalance::check(double t, std::span<const double> x, long steps, MassBalanceFailure& failure) const {
+bool MassBalance::check(double t, std::span<const double> x, MassBalanceFailure& failure) const {
     if (!active_) return true;
-    double delivered = 0.0, in_body = 0.0;
+    double delivered = 0.0, in_body = 0.0, end = 0.0;
     for (std::size_t i = 0; i < n_; ++i) {
         delivered += bolus_[i] + infused_[i];
         in_body += x[i];
+        end = std::max(end, std::abs(x[i]));
     }
-    const double scale = std::max(largest_, delivered);
+    // The allowance's scale is Σ_k (N_k + N_{k+1}) + M rather than Σ_k N_k + M (the header's outline): a step that
+    // starts from nothing (an infusion into empty compartments) is controlled relative to where it goes, so each
+    // step counts both of its ends (N_{k+1} the start of the next step; the last step's end is x).
+    const double scales = scale_sum_ + end + largest_;
     // What compartment i should hold, and its allowance.
     auto balance = [&](std::size_t i, double& allowed) {
         double e = start_[i] + bolus_[i] + infused_[i] + c_[i] * elapsed_;
@@ -57,7 +64,7 @@ bool MassBalance::check(double t, std::span<const double> x, long steps, MassBal
             e += a_[i * n_ + j] * integral_[j];
             gross += std::abs(a_[i * n_ + j] * integral_[j]);
         }
-        allowed = 2.0 * (static_cast<double>(steps) + 1.0) * tol_ * scale + 64.0 * 0x1p-53 * gross;
+        allowed = 2.0 * tol_ * scales + 64.0 * 0x1p-53 * gross;
         return e;
     };
     double worst = 0.0;

@@ -151,7 +151,7 @@ Simulation integrate_events(const model::Model& m, taylor::Stepper& stepper, con
     MassBalance balance(stepper.expander(), x0, opt.tol, opt.check_mass && opt.sensitivities == 0);
     // At each dose time (before its doses) and at the end: a linear model's run out of balance stops here.
     auto balanced = [&](double at) {
-        if (balance.check(at, x, sim.steps, sim.mass)) return true;
+        if (balance.check(at, x, sim.mass)) return true;
         sim.outcome = taylor::Outcome::MassBalance;
         sim.failed_at = sim.mass.time;
         sim.failed_state = sim.mass.compartment;
