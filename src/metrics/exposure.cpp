@@ -188,7 +188,7 @@ Exposure compute(const sim::Schedule& schedule, const sim::Simulation& sim,
             st.within_5pct = settled_from(sw, e.first_dose, check_end, st.minimum.value, st.peak.value, 0.05);
             st.period = pt;
         }
-        e.steady = st;
+        e.steady = std::move(st);
     }
     return e;
 }
