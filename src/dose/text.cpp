@@ -1,5 +1,6 @@
 #include <algorithm>
 #include <cmath>
+#include <utility>
 
 #include "dose/print.hpp"
 #include "report/caution.hpp"
@@ -129,6 +130,24 @@ void heading(std::ostream& out, const Report& r, std::size_t candidates, const s
     out << '\n';
 }
 
+// "every 8 h, over 4 h: " or "every 12 h, bolus: ", the start of a candidate's note.
+std::string note_prefix(const Shape& shape) {
+    return "every " + duration_text(shape.tau) + ", " +
+           (shape.over > 0 ? "over " + duration_text(shape.over) : "bolus") + ": ";
+}
+
+// The notes (the candidates' own, then the report's), the trailer and the closing caution.
+void finish(std::ostream& out, const Report& r, std::vector<std::string> notes) {
+    notes.insert(notes.end(), r.notes.begin(), r.notes.end());
+    if (!notes.empty()) {
+        out << "\nNotes\n";
+        for (const auto& n : notes) wrap(out, n, "  - ", "    ");
+    }
+    out << '\n';
+    if (!r.trailer.empty()) out << r.trailer;
+    caution(out);
+}
+
 }  // namespace
 
 void write_text(std::ostream& out, const Report& r, const std::vector<Found>& fs) {
@@ -199,20 +218,12 @@ void write_text(std::ostream& out, const Report& r, const std::vector<Found>& fs
     }
     std::vector<std::string> notes;
     for (const Found& f : fs) {
-        const std::string who = "every " + duration_text(f.shape.tau) + ", " +
-                                (f.shape.over > 0 ? "over " + duration_text(f.shape.over) : "bolus") + ": ";
+        const std::string who = note_prefix(f.shape);
         if (!f.message.empty()) notes.push_back(who + f.message + ".");
         if (f.loading && !f.loading->problem.empty())
             notes.push_back(who + "no loading dose: " + f.loading->problem + ".");
     }
-    notes.insert(notes.end(), r.notes.begin(), r.notes.end());
-    if (!notes.empty()) {
-        out << "\nNotes\n";
-        for (const auto& n : notes) wrap(out, n, "  - ", "    ");
-    }
-    out << '\n';
-    if (!r.trailer.empty()) out << r.trailer;
-    caution(out);
+    finish(out, r, std::move(notes));
 }
 
 void write_text(std::ostream& out, const Report& r, const std::vector<PopulationDose>& ds) {
@@ -265,8 +276,7 @@ void write_text(std::ostream& out, const Report& r, const std::vector<Population
     }
     std::vector<std::string> notes;
     for (const PopulationDose& d : ds) {
-        const std::string who = "every " + duration_text(d.shape.tau) + ", " +
-                                (d.shape.over > 0 ? "over " + duration_text(d.shape.over) : "bolus") + ": ";
+        const std::string who = note_prefix(d.shape);
         if (!d.found)
             notes.push_back(who + "no dose reaches a PTA of " + share + "; the most is " + report::percent(d.at.pta) +
                             " (" + std::to_string(d.at.attained) + " of " + std::to_string(d.at.total) + ") at " +
@@ -284,14 +294,7 @@ void write_text(std::ostream& out, const Report& r, const std::vector<Population
         notes.push_back(who + std::to_string(d.cannot()) + " of " + std::to_string(d.at.total) + " patients: " + list +
                         "; they count as not attaining.");
     }
-    notes.insert(notes.end(), r.notes.begin(), r.notes.end());
-    if (!notes.empty()) {
-        out << "\nNotes\n";
-        for (const auto& n : notes) wrap(out, n, "  - ", "    ");
-    }
-    out << '\n';
-    if (!r.trailer.empty()) out << r.trailer;
-    caution(out);
+    finish(out, r, std::move(notes));
 }
 
 }  // namespace plateau::dose

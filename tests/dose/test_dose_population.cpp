@@ -9,6 +9,7 @@
 #include <limits>
 #include <sstream>
 
+#include "../support/cl_varies.hpp"
 #include "dose/population.hpp"
 #include "input/load.hpp"
 #include "population/run.hpp"
@@ -23,34 +24,8 @@ constexpr double kInf = std::numeric_limits<double>::infinity();
 
 dose::Patient meets(double need, double cap = kInf) { return {dose::PatientStatus::Meets, need, cap}; }
 
-const char* kModel = R"(id = "one-cpt-cl-varies"
-summary = "one compartment, IV bolus; only clearance varies"
-[parameters]
-cl = { value = "5 L/h" }
-v  = { value = "40 L" }
-[variability]
-cl = "30 %"
-[compartments]
-central = "mg"
-[rates]
-central = "-cl/v*central"
-[outputs]
-conc = { expr = "central/v", unit = "mg/L" }
-[routes]
-iv = { into = "central" }
-)";
-
-// A bolus every 12 h; the threshold judged on the whole interval, i.e. on the steady-state trough.
-const char* kRegimen = R"(id = "q12h"
-model = "model.toml"
-[[doses]]
-route = "iv"
-amount = "500 mg"
-every = "12 h"
-count = 12
-[targets]
-above = "3.5 mg/L"
-)";
+const char* const kModel = test::kClVariesModel;
+const char* const kRegimen = test::kClVariesRegimen;
 
 constexpr double kTau = 12.0, kV = 40.0, kClTyp = 5.0, kT = 3.5;
 

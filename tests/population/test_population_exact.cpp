@@ -6,6 +6,7 @@
 #include <algorithm>
 #include <cmath>
 
+#include "../support/cl_varies.hpp"
 #include "input/load.hpp"
 #include "input/load_cohort.hpp"
 #include "population/draw.hpp"
@@ -18,35 +19,8 @@ using namespace plateau;
 
 namespace {
 
-const char* kModel = R"(id = "one-cpt-cl-varies"
-summary = "one compartment, IV bolus; only clearance varies"
-[parameters]
-cl = { value = "5 L/h" }
-v  = { value = "40 L" }
-[variability]
-cl = "30 %"
-[compartments]
-central = "mg"
-[rates]
-central = "-cl/v*central"
-[outputs]
-conc = { expr = "central/v", unit = "mg/L" }
-[routes]
-iv = { into = "central" }
-)";
-
-// 500 mg every 12 h, 12 doses; the threshold judged on the whole interval, i.e. on the trough (3.59 mg/L for
-// the typical clearance, so the PTA is near one half).
-const char* kRegimen = R"(id = "q12h"
-model = "model.toml"
-[[doses]]
-route = "iv"
-amount = "500 mg"
-every = "12 h"
-count = 12
-[targets]
-above = "3.5 mg/L"
-)";
+const char* const kModel = test::kClVariesModel;
+const char* const kRegimen = test::kClVariesRegimen;
 
 constexpr double kDose = 500.0, kTau = 12.0, kV = 40.0, kClTyp = 5.0, kT = 3.5;
 
