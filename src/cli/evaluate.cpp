@@ -166,8 +166,8 @@ report::Candidate evaluate(regimen::Regimen r, const sim::Options& opt,
     }
     metrics::Request req = metrics::request_from(c.regimen, opt);
     req.auc_windows = auc_windows;
-    const auto steady = sim::steady_state(c.regimen.model, c.regimen.parameter_values(), c.schedule, c.sim, opt);
-    c.exposure = metrics::compute(c.schedule, c.sim, steady, req);
+    auto steady = sim::steady_state(c.regimen.model, c.regimen.parameter_values(), c.schedule, c.sim, opt);
+    c.exposure = metrics::compute(c.schedule, c.sim, std::move(steady), req);
     return c;
 }
 

@@ -1,6 +1,7 @@
 #include "metrics/exposure.hpp"
 
 #include <algorithm>
+#include <utility>
 #include <cmath>
 #include <limits>
 
@@ -74,7 +75,7 @@ Request request_from(const regimen::Regimen& r, const sim::Options& opt) {
 }
 
 Exposure compute(const sim::Schedule& schedule, const sim::Simulation& sim,
-                 const std::optional<sim::PeriodicSolution>& steady, const Request& req) {
+                 std::optional<sim::PeriodicSolution> steady, const Request& req) {
     using regimen::before;
     Exposure e;
     const traj::Trajectory& tr = sim.trajectory;
@@ -186,7 +187,7 @@ Exposure compute(const sim::Schedule& schedule, const sim::Simulation& sim,
             const double check_end = std::min(e.end, schedule.cycle->next_due);
             st.within_10pct = settled_from(sw, e.first_dose, check_end, st.minimum.value, st.peak.value, 0.10);
             st.within_5pct = settled_from(sw, e.first_dose, check_end, st.minimum.value, st.peak.value, 0.05);
-            st.period = pt;
+            st.period = std::move(steady->period.trajectory);  // psw, which reads pt, is not used after this
         }
         e.steady = std::move(st);
     }
@@ -195,8 +196,8 @@ Exposure compute(const sim::Schedule& schedule, const sim::Simulation& sim,
 
 Exposure compute(const regimen::Regimen& r, const sim::Simulation& sim, const Request& req) {
     const sim::Schedule schedule = sim::make_schedule(r);
-    const auto steady = sim::steady_state(r.model, r.parameter_values(), schedule, sim, req.options);
-    return compute(schedule, sim, steady, req);
+    auto steady = sim::steady_state(r.model, r.parameter_values(), schedule, sim, req.options);
+    return compute(schedule, sim, std::move(steady), req);
 }
 
 }  // namespace plateau::metrics

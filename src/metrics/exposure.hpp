@@ -104,9 +104,10 @@ struct Exposure {
 };
 
 // Computes every figure of one simulation of the regimen from its schedule and, when the regimen repeats, its
-// periodic steady state (sim::steady_state). Integrates nothing.
+// periodic steady state (sim::steady_state). Integrates nothing. The steady solution is taken by value: its
+// cycle's trajectory moves into the result (a population computes this for every subject).
 Exposure compute(const sim::Schedule& schedule, const sim::Simulation& sim,
-                 const std::optional<sim::PeriodicSolution>& steady, const Request& req);
+                 std::optional<sim::PeriodicSolution> steady, const Request& req);
 
 // Convenience for one simulated regimen: builds its schedule, solves its steady state (this integrates one
 // cycle several times) and computes every figure.
