@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <utility>
 
 #include <Eigen/Dense>
 
@@ -72,13 +73,16 @@ PeriodicSolution solve_cycle(const model::Model& m, std::span<const double> para
     const std::vector<Event> events = cycle_events(m, params, c, true);
 
     bool failed = false;
-    auto phi = [&](const std::vector<double>& x) {
+    // Φ(x): the state one cycle after x. `keep`, when given, receives the cycle's simulation.
+    auto phi = [&](const std::vector<double>& x, Simulation* keep = nullptr) {
         Simulation s = integrate_events(m, stepper, events, x, c.period, opt);
         if (s.outcome != taylor::Outcome::Ok) {
             failed = true;
             return std::vector<double>(n, 0.0);
         }
-        return final_state(s);
+        std::vector<double> end = final_state(s);
+        if (keep != nullptr) *keep = std::move(s);
+        return end;
     };
 
     double dosed = 0.0;
@@ -88,8 +92,12 @@ PeriodicSolution solve_cycle(const model::Model& m, std::span<const double> para
         for (std::size_t i = 0; i < n; ++i) x[i] = std::max(0.0, guess[i]);
     const std::vector<double> start = x;
 
-    auto residual = [&](const std::vector<double>& xs, std::vector<double>& fx) {
-        fx = phi(xs);
+    // Each residual keeps Φ(xs) and the cycle's simulation: the Newton step's Jacobian starts from Φ(x), and
+    // the converged state's cycle is the steady state's trajectory, so neither is integrated twice.
+    auto residual = [&](const std::vector<double>& xs, std::vector<double>& fx, std::vector<double>& phix,
+                        Simulation& cycle) {
+        phix = phi(xs, &cycle);
+        fx = phix;
         for (std::size_t i = 0; i < n; ++i) fx[i] -= xs[i];
         return inf_norm(fx);
     };
@@ -99,15 +107,15 @@ PeriodicSolution solve_cycle(const model::Model& m, std::span<const double> para
     auto converged = [&](double r, const std::vector<double>& xs) {
         return r <= 1e-9 * dosed + 1e-12 * inf_norm(xs) && r <= 1e-6 * dosed;
     };
-    std::vector<double> f;
-    double r = residual(x, f);
+    std::vector<double> f, phix;
+    Simulation cycle;
+    double r = residual(x, f, phix, cycle);
     const int max_iter = 60;
     for (out.iterations = 0; out.iterations < max_iter && !failed; ++out.iterations) {
         const double scale = std::max({1e-300, inf_norm(x), dosed});
         if (r <= 1e-13 * dosed + 1e-15 * inf_norm(x)) break;
         // Jacobian of Φ by forward differences (exact up to round-off for the affine maps of linear models).
         Eigen::MatrixXd jac(static_cast<Eigen::Index>(n), static_cast<Eigen::Index>(n));
-        const std::vector<double> phix = phi(x);
         for (std::size_t j = 0; j < n; ++j) {
             std::vector<double> xp = x;
             const double h = 1e-6 * std::max(std::abs(x[j]), scale);
@@ -124,14 +132,17 @@ PeriodicSolution solve_cycle(const model::Model& m, std::span<const double> para
         // Damped update: halve the step until the residual falls; amounts stay non-negative.
         double lambda = 1.0;
         bool improved = false;
-        std::vector<double> xn(n), fn;
+        std::vector<double> xn(n), fn, pn;
+        Simulation cn;
         for (int k = 0; k < 30 && !failed; ++k, lambda *= 0.5) {
             for (std::size_t i = 0; i < n; ++i)
                 xn[i] = std::max(0.0, x[i] + lambda * delta(static_cast<Eigen::Index>(i)));
-            const double rn = residual(xn, fn);
+            const double rn = residual(xn, fn, pn, cn);
             if (!failed && rn < r) {
                 x = xn;
                 f = fn;
+                phix = pn;
+                cycle = std::move(cn);
                 r = rn;
                 improved = true;
                 break;
@@ -167,7 +178,7 @@ PeriodicSolution solve_cycle(const model::Model& m, std::span<const double> para
         return out;
     }
     out.found = true;
-    out.period = integrate_events(m, stepper, events, x, c.period, opt);
+    out.period = std::move(cycle);  // the cycle from x, integrated by the last accepted residual
     const std::vector<double> zero(n, 0.0);
     out.first_cycle = integrate_events(m, stepper, cycle_events(m, params, c, false), zero, c.period, opt);
     return out;
