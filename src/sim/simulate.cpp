@@ -94,14 +94,20 @@ void note_stiffness(Simulation& sim, const model::Model& m, const taylor::Expand
 
 namespace {
 
+// Every series' polynomial at the step's end h, by Horner.
+void step_end(const std::vector<double>& coeffs, std::size_t stride, double h, std::vector<double>& end) {
+    for (std::size_t c = 0; c < end.size(); ++c) end[c] = traj::horner({coeffs.data() + c * stride, stride}, h);
+}
+
 // The first time in (0, h) at which a compartment that starts the step above zero reaches zero, when it ends
-// the step below zero; h otherwise. `which` is that compartment (−1 when none).
-double emptying_time(const std::vector<double>& coeffs, std::size_t nc, std::size_t stride, double h, int& which) {
+// the step (`end`, at h) below zero; h otherwise. `which` is that compartment (−1 when none).
+double emptying_time(const std::vector<double>& coeffs, const std::vector<double>& end, std::size_t nc,
+                     std::size_t stride, double h, int& which) {
     double first = h;
     which = -1;
     for (std::size_t c = 0; c < nc; ++c) {
         const std::span<const double> p(coeffs.data() + c * stride, stride);
-        if (!(p[0] > 0.0) || traj::horner(p, h) >= 0.0) continue;
+        if (!(p[0] > 0.0) || end[c] >= 0.0) continue;
         const std::vector<double> roots = traj::roots_in(p, 0.0, h);
         if (!roots.empty() && roots.front() < first) {
             first = roots.front();
@@ -131,7 +137,7 @@ Simulation integrate_events(const model::Model& m, taylor::Stepper& stepper, con
         v[c] = 0.0;
         for (std::size_t j = 0; j < per; ++j) v[nc + c * per + j] = 0.0;
     };
-    std::vector<double> x(x0.begin(), x0.end()), u(nx, 0.0), coeffs;
+    std::vector<double> x(x0.begin(), x0.end()), u(nx, 0.0), coeffs, end(nx);
     const std::size_t stride = static_cast<std::size_t>(stepper.order()) + 1;
     const long budget = step_budget(opt, static_cast<double>(sim.trajectory.bytes_per_step()));
     sim.budget = budget;
@@ -206,18 +212,19 @@ Simulation integrate_events(const model::Model& m, taylor::Stepper& stepper, con
             // it below zero was emptied inside the step (saturable elimination far above km is a straight line
             // down, and the drop from km to zero takes an instant the series cannot see): the step ends where
             // the amount reaches zero, and the amount is zero from there.
+            step_end(coeffs, stride, h, end);
             int emptied = -1;
-            if (const double cut = emptying_time(coeffs, nc, stride, h, emptied); cut < h) {
+            if (const double cut = emptying_time(coeffs, end, nc, stride, h, emptied); cut < h) {
                 h = cut;
                 lands = false;
+                step_end(coeffs, stride, h, end);
             }
             sim.trajectory.append(t, h, coeffs);
             balance.add_step(coeffs, stride, static_cast<std::size_t>(stepper.n_series()), h, u);
             ++sim.steps;
             double largest = 0.0;
             for (std::size_t c = 0; c < nx; ++c) {
-                double v = 0.0;
-                for (std::size_t k = stride; k-- > 0;) v = v * h + coeffs[c * stride + k];
+                const double v = end[c];
                 x[c] = v;
                 if (!std::isfinite(v)) {
                     sim.outcome = taylor::Outcome::NonFinite;
