@@ -6,37 +6,17 @@
 #include <cstddef>
 #include <cstdint>
 #include <cstdio>
-#include <filesystem>
 #include <string>
 #include <vector>
-
-#include <unistd.h>
 
 #include "core/diagnostic.hpp"
 #include "input/load.hpp"
 #include "input/load_cohort.hpp"
-
-namespace {
-
-const std::string& work_file() {
-    static const std::string path = [] {
-        const auto dir = std::filesystem::temp_directory_path() / ("plateau-fuzz-" + std::to_string(::getpid()));
-        std::filesystem::create_directories(dir);
-        return (dir / "input.toml").string();
-    }();
-    return path;
-}
-
-}  // namespace
+#include "work_file.hpp"
 
 extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size) {
-    const std::string& path = work_file();
-    if (std::FILE* f = std::fopen(path.c_str(), "wb")) {
-        if (size > 0) std::fwrite(data, 1, size, f);
-        std::fclose(f);
-    } else {
-        return 0;
-    }
+    const std::string path = plateau::fuzz::write_work_file("input.toml", data, size);
+    if (path.empty()) return 0;
     try {
 #if defined(FUZZ_COHORT)
         // A cohort may name a CSV of observed covariates (resampled) beside it: a missing or bad one is a

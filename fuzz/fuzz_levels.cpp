@@ -8,26 +8,15 @@
 #include <cstdint>
 #include <cstdio>
 #include <cstdlib>
-#include <filesystem>
 #include <string>
-
-#include <unistd.h>
 
 #include "core/diagnostic.hpp"
 #include "fit/problem.hpp"
 #include "input/load.hpp"
 #include "input/load_levels.hpp"
+#include "work_file.hpp"
 
 namespace {
-
-const std::string& work_file() {
-    static const std::string path = [] {
-        const auto dir = std::filesystem::temp_directory_path() / ("plateau-fuzz-" + std::to_string(::getpid()));
-        std::filesystem::create_directories(dir);
-        return (dir / "levels.csv").string();
-    }();
-    return path;
-}
 
 const plateau::regimen::Regimen& regimen() {
     static const plateau::regimen::Regimen r =
@@ -38,13 +27,8 @@ const plateau::regimen::Regimen& regimen() {
 }  // namespace
 
 extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size) {
-    const std::string& path = work_file();
-    if (std::FILE* f = std::fopen(path.c_str(), "wb")) {
-        if (size > 0) std::fwrite(data, 1, size, f);
-        std::fclose(f);
-    } else {
-        return 0;
-    }
+    const std::string path = plateau::fuzz::write_work_file("levels.csv", data, size);
+    if (path.empty()) return 0;
     const auto& r = regimen();
     try {
         const auto levels = plateau::input::load_levels(path, r.model, 0, plateau::fit::level_context(r));
