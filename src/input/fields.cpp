@@ -54,6 +54,23 @@ std::string one_of(const std::vector<std::string>& names) {
     return names.empty() ? std::string("none (nothing is defined)") : "one of: " + join(names);
 }
 
+bool physical_value_ok(Ctx& c, const Value& at, const std::string& name, const std::string& unit, units::Dim dim,
+                       double value, const std::string& what) {
+    const std::string subject = what.empty() ? "'" + name + "'" : what;
+    const std::string got = fmt(value) + " " + units::canonical_unit(dim);
+    if (dim == units::kVolume && !(value > 0.0)) {
+        c.value_error(at, subject + " must be more than 0 (it is a volume), got " + got, "a volume above 0 L");
+        return false;
+    }
+    if (!dim.dimensionless() && value < 0.0) {
+        c.value_error(at, subject + " cannot be negative (got " + got + "): with a unit" +
+                              (unit.empty() ? std::string() : " (" + unit + ")") + " it is a physical quantity",
+                      "a value of 0 or more");
+        return false;
+    }
+    return true;
+}
+
 std::string fmt(double x) {
     if (x == 0.0) return "0";
     char buf[64];

@@ -59,6 +59,13 @@ std::string join(const std::vector<std::string>& names);     // "a, b, c"
 std::string one_of(const std::vector<std::string>& names);   // "one of: a, b, c" ("none" when empty)
 std::string fmt(double x);                                    // shortest readable form, 6 significant digits
 
+// A parameter with a unit is a physical quantity — a clearance, a rate constant, a volume, a concentration — so
+// it cannot be negative, and a volume cannot be zero (amounts are divided by it). A dimensionless parameter (an
+// exponent, a fraction with checks of its own) may take any sign. Reports an error at `at` and returns false
+// when `value` breaks that rule; `name` is the parameter's name, `unit` its unit as written.
+bool physical_value_ok(Ctx& c, const Value& at, const std::string& name, const std::string& unit, units::Dim dim,
+                       double value, const std::string& what = "");
+
 bool is_identifier(std::string_view s);
 
 // Throws InputError if the sink has anything: diagnostics in other files first (a regimen's model), then

@@ -114,10 +114,7 @@ void load_parameters(Ctx& c, const Value& root, Names& names, model::Model& m, s
                         p.unit = units::Unit{1.0, p.dim};  // the quantity parsed, so this cannot really happen
                     }
                 }
-                if (p.dim == units::kVolume && !(p.value > 0.0)) {
-                    c.value_error(*val, "the volume '" + e.key + "' must be more than 0", "a volume above 0 L");
-                    ok = false;
-                }
+                if (!physical_value_ok(c, *val, e.key, p.unit_text, p.dim, p.value)) ok = false;
             }
         }
         if (!named) continue;
@@ -418,9 +415,11 @@ void load_derived(Ctx& c, const Value& root, Names& names, model::Model& m, std:
                     x = model::evaluate_constant(m, *p.expr, m.default_values());
                 } catch (const std::exception&) {
                 }
-                if (!std::isfinite(x) || (p.dim == units::kVolume && !(x > 0.0))) {
-                    c.value_error(ex->value, where + " is " + fmt(x) + " with the typical values",
-                                  p.dim == units::kVolume ? "a volume above 0 L" : "a finite value");
+                if (!std::isfinite(x)) {
+                    c.value_error(ex->value, where + " is " + fmt(x) + " with the typical values", "a finite value");
+                    ok = false;
+                } else if (!physical_value_ok(c, ex->value, e.key, p.unit_text, p.dim, x,
+                                              where + " with the typical values")) {
                     ok = false;
                 }
                 p.value = x;

@@ -280,10 +280,7 @@ void load_overrides(Ctx& c, const Value& table, const model::Model& m, regimen::
         if (!p.unit_text.empty()) example += " " + p.unit_text;
         auto q = quantity(c, e.value, e.key, p.dim, example, p.dim.dimensionless());
         if (!q) continue;
-        if (p.dim == units::kVolume && !(q->value > 0.0)) {
-            c.value_error(e.value, "the volume '" + e.key + "' must be more than 0", "a volume above 0 L");
-            continue;
-        }
+        if (!physical_value_ok(c, e.value, e.key, p.unit_text, p.dim, q->value)) continue;
         regimen::Override o;
         o.name = e.key;
         o.index = idx;

@@ -168,8 +168,12 @@ std::vector<double> values_at(const model::Model& m, std::span<const double> par
                               int output, std::span<const double> times, double t_end, const Options& opt,
                               taylor::Outcome& outcome) {
     const Simulation s = simulate(m, params, doses, t_end, opt);
-    if (s.outcome != taylor::Outcome::Ok) outcome = s.outcome;
     std::vector<double> v;
+    if (s.outcome != taylor::Outcome::Ok) {
+        outcome = s.outcome;
+        v.assign(times.size(), 0.0);  // not read: the caller sees the outcome (a failed run may have no step)
+        return v;
+    }
     v.reserve(times.size());
     for (double t : times) v.push_back(s.trajectory.value(s.output_series(output), t));
     return v;
@@ -192,6 +196,7 @@ OutputSensitivity output_sensitivities(const model::Model& m, std::span<const do
 
     OutputSensitivity r;
     r.outcome = s.outcome;
+    if (s.outcome != taylor::Outcome::Ok) return r;  // a failed run has no values to read (it may have no step)
     const int ns = static_cast<int>(x0.size());
     r.value.reserve(times.size());
     r.d.assign(times.size(), std::vector<double>(wrt.size(), 0.0));
