@@ -21,7 +21,7 @@ namespace plateau::cli {
 
 int check_command(const CheckOptions& opt, std::ostream& out, std::ostream& err) {
     if (opt.files.empty()) {
-        err << "error: no files given; expected one or more model or regimen files\n";
+        err << "error: no files given; expected one or more model, regimen, cohort or threshold files\n";
         return kExitBadInput;
     }
     const std::vector<std::string> dirs = model_dirs(opt.model_dirs);
@@ -55,9 +55,14 @@ int check_command(const CheckOptions& opt, std::ostream& out, std::ostream& err)
                     << ")\n";
                 return kExitOk;
             }
-            err << f << ": error: cannot tell whether this is a model or a regimen file\n"
+            if (kind == "thresholds") {
+                const population::ThresholdDist t = input::load_thresholds(f);
+                out << f << ": ok (threshold distribution, " << plural(t.thresholds.size(), "threshold") << ")\n";
+                return kExitOk;
+            }
+            err << f << ": error: cannot tell what kind of file this is\n"
                 << "  expected: a model file has a [compartments] table; a regimen file has [[doses]] and model = "
-                   "\"...\"\n";
+                   "\"...\"; a cohort file has [covariates] or resample; a threshold distribution has thresholds\n";
             return kExitBadInput;
         });
         if (code != kExitOk) ++failed;

@@ -24,6 +24,17 @@ CLI::Validator tolerance_validator() {
     return CLI::Validator([](std::string& s) { return cli::tolerance_problem(s); }, "", "TOL");
 }
 
+// Counts and seeds are unsigned: without this, "-5" would wrap around to 18446744073709551611.
+CLI::Validator whole_number_validator() {
+    return CLI::Validator(
+        [](std::string& s) {
+            return s.find_first_not_of("0123456789") == std::string::npos && !s.empty()
+                       ? std::string()
+                       : "expected a whole number of 0 or more, got '" + s + "'";
+        },
+        "", "N");
+}
+
 CLI::Validator duration_validator() {
     return CLI::Validator([](std::string& s) { return cli::duration_problem(s); }, "", "DURATION");
 }
@@ -55,6 +66,7 @@ void add_outputs(CLI::App* app, std::string& json, std::string& report, std::str
 void add_model_dirs(CLI::App* app, std::vector<std::string>& dirs) {
     app->add_option("--models", dirs, "Also look for models in DIR (repeatable)")
         ->type_name("DIR")
+        ->check(CLI::ExistingDirectory)  // a misspelt folder would otherwise be skipped without a word
         ->expected(1)
         ->allow_extra_args(false)  // one directory per --models, so positionals after it stay positionals
         ->multi_option_policy(CLI::MultiOptionPolicy::TakeAll);
@@ -163,9 +175,9 @@ static int plateau_main(int argc, char** argv) {
     CLI::App* pop = app.add_subcommand("population", "Virtual patients through regimens: PTA, percentiles, bands");
     pop->add_option("regimens", pop_opt.regimens, "Regimen files (.toml) of one model")->required()->type_name("REGIMEN...");
     pop->add_option("--cohort", pop_opt.cohort, "Cohort file: the covariates of the virtual patients")->type_name("FILE");
-    pop->add_option("--size", pop_opt.size, "Number of virtual patients (default 1000)")->type_name("N");
-    pop->add_option("--seed", pop_opt.seed, "Seed: the same seed gives the same patients (default 1)")->type_name("S");
-    pop->add_option("--threads", pop_opt.threads, "Threads (the output does not depend on it; default 1)")->type_name("N");
+    pop->add_option("--size", pop_opt.size, "Number of virtual patients (default 1000)")->check(whole_number_validator())->type_name("N");
+    pop->add_option("--seed", pop_opt.seed, "Seed: the same seed gives the same patients (default 1)")->check(whole_number_validator())->type_name("S");
+    pop->add_option("--threads", pop_opt.threads, "Threads (the output does not depend on it; default 1)")->check(whole_number_validator())->type_name("N");
     pop->add_option("--tol", pop_opt.tol, "Integration tolerance, 1e-15 to 1e-3 (default 1e-10)")
         ->check(tolerance_validator())
         ->type_name("TOL");
@@ -181,8 +193,10 @@ static int plateau_main(int argc, char** argv) {
                        "  plateau population a.toml --above 2mg/L --pta-curve 0.25mg/L..64mg/L --json - --threads 2"));
 
     cli::CheckOptions check_opt;
-    CLI::App* check = app.add_subcommand("check", "Validate model and regimen files without simulating");
-    check->add_option("files", check_opt.files, "Model or regimen files")->required()->type_name("FILE");
+    CLI::App* check = app.add_subcommand("check", "Validate model, regimen, cohort and threshold files without simulating");
+    check->add_option("files", check_opt.files, "Model, regimen, cohort or threshold-distribution files")
+        ->required()
+        ->type_name("FILE");
     add_model_dirs(check, check_opt.model_dirs);
     check->footer(footer("  plateau check my-model.toml my-regimen.toml"));
 
@@ -213,9 +227,9 @@ static int plateau_main(int argc, char** argv) {
         ->type_name("SHARE");
     dose->add_option("--cohort", dose_opt.cohort, "Virtual patients for --pta (default: the template's patient, "
                                                   "random effects only)")->type_name("FILE");
-    dose->add_option("--size", dose_opt.size, "Virtual patients for --pta (default 1000)")->type_name("N");
-    dose->add_option("--seed", dose_opt.seed, "Seed of the virtual patients (default 1)")->type_name("S");
-    dose->add_option("--threads", dose_opt.threads, "Worker threads for --pta (default 1)")->type_name("N");
+    dose->add_option("--size", dose_opt.size, "Virtual patients for --pta (default 1000)")->check(whole_number_validator())->type_name("N");
+    dose->add_option("--seed", dose_opt.seed, "Seed of the virtual patients (default 1)")->check(whole_number_validator())->type_name("S");
+    dose->add_option("--threads", dose_opt.threads, "Worker threads for --pta (default 1)")->check(whole_number_validator())->type_name("N");
     add_targets(dose, dose_opt.targets);
     add_model_dirs(dose, dose_opt.model_dirs);
     dose->footer(footer("  plateau dose regimens/zelmarin-q8h-4h.toml --round 250mg\n"

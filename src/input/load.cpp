@@ -148,6 +148,7 @@ std::string file_kind(const std::string& path) {
     if (doc.root.find("compartments") != nullptr) return "model";
     if (doc.root.find("doses") != nullptr || doc.root.find("model") != nullptr) return "regimen";
     if (doc.root.find("covariates") != nullptr || doc.root.find("resample") != nullptr) return "cohort";
+    if (doc.root.find("thresholds") != nullptr) return "thresholds";
     return "";
 }
 

@@ -28,7 +28,9 @@ regimen::Regimen load_regimen(const std::string& path, const std::vector<std::st
 std::vector<std::string> default_model_dirs();
 
 // What kind of file this is, from its top-level keys: "model" (has [compartments]), "regimen" (has [[doses]]
-// or `model`), "cohort" (has [covariates] or [resample] and no [compartments]), or "" if it cannot be told. Throws InputError when the file cannot be read or parsed.
+// or `model`), "cohort" (has [covariates] or [resample] and no [compartments]), "thresholds" (a threshold
+// distribution: has `thresholds`), or "" if it cannot be told. Throws InputError when the file cannot be read or
+// parsed.
 std::string file_kind(const std::string& path);
 
 // Every model file found in the directories (first occurrence of an id wins), loaded; regimen files there are

@@ -1,5 +1,6 @@
 #include "report/exposure_text.hpp"
 
+#include <algorithm>
 #include <string>
 #include <vector>
 
@@ -81,17 +82,20 @@ void write_exposure_text(std::ostream& out, const regimen::Regimen& r, const sim
         std::vector<std::string> head = {"start h", "end h", "peak", "at h", "trough", "minimum", "AUC"};
         if (above) head.push_back("above h");
         if (window) head.push_back("window h");
-        const std::size_t wcol = 10;
+        std::vector<const char*> keys = {"start", "end", "peak", "peak_time", "trough", "minimum", "auc"};
+        if (above) keys.push_back("above_hours");
+        if (window) keys.push_back("window_hours");
+        // Columns of at least 10, wider when a value needs it (two spaces between values, always).
+        std::size_t wcol = 10;
+        for (const auto& iv : intervals.items)
+            for (const char* k : keys) wcol = std::max(wcol, shown(iv.at(k)).size() + 2);
         out << "  ";
         for (const auto& h : head) out << pad_left(h, wcol);
         if (opt.clock) out << pad_left("starts", 13);
         out << '\n';
         auto line = [&](const Node& iv) {
             out << "  ";
-            for (const char* k : {"start", "end", "peak", "peak_time", "trough", "minimum", "auc"})
-                out << pad_left(shown(iv.at(k)), wcol);
-            if (above) out << pad_left(shown(iv.at("above_hours")), wcol);
-            if (window) out << pad_left(shown(iv.at("window_hours")), wcol);
+            for (const char* k : keys) out << pad_left(shown(iv.at(k)), wcol);
             if (opt.clock) out << pad_left(day_clock(v(iv.at("start")), *opt.clock), 13);
             out << (iv.at("partial").value.flag ? " *" : "") << '\n';
         };

@@ -43,8 +43,25 @@ TEST_CASE("cli: check reports every failing file and exits 1", "[cli]") {
           data_path("oral-single.toml") + ": ok (regimen 'oral-single', 1 dose, model 'one-compartment-oral')\n");
     CHECK(contains(r.err, "bad-amount.toml:6:"));
     CHECK(contains(r.err, "mgg"));
-    CHECK(contains(r.err, "unknown-kind.toml: error: cannot tell whether this is a model or a regimen file"));
+    CHECK(contains(r.err, "unknown-kind.toml: error: cannot tell what kind of file this is"));
     CHECK(contains(r.err, "2 of 3 files failed the check"));
+}
+
+TEST_CASE("cli: check knows the shipped cohort and threshold-distribution files", "[cli]") {
+    cli::CheckOptions o;
+    const std::string dir = std::string(PLATEAU_SOURCE_DIR) + "/cohorts/";
+    o.files = {dir + "zelmarin-thresholds.toml"};
+    Result r = check(o);
+    INFO(r.err);
+    CHECK(r.code == cli::kExitOk);
+    CHECK(r.out == dir + "zelmarin-thresholds.toml: ok (threshold distribution, 7 thresholds)\n");
+    for (const auto& f : std::filesystem::directory_iterator(dir)) {
+        if (f.path().extension() != ".toml") continue;
+        o.files = {f.path().string()};
+        r = check(o);
+        INFO(f.path().string() << ": " << r.err);
+        CHECK(r.code == cli::kExitOk);
+    }
 }
 
 TEST_CASE("cli: models lists the built-in models in columns", "[cli]") {
