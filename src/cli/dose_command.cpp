@@ -84,7 +84,7 @@ regimen::Regimen recommended_regimen(const dose::Template& t, const dose::Found&
     regimen::Regimen r = dose::variant(t, f.shape, f.dose, load);
     r.id = t.regimen.id + "-dose";
     r.about = num(f.dose, 6) + " mg every " + dose::duration_text(f.shape.tau) +
-              (f.shape.over > 0 ? " as infusions over " + dose::duration_text(f.shape.over) : " as a bolus") +
+              dose::delivery_text(t, f.shape.over) +
               (load ? ", " + num(*load, 6) + " mg loading dose first" : "") + " (the dose search's " + rule +
               ", from " + t.regimen.id + ")";
     return r;
@@ -153,7 +153,7 @@ int population_half(const DoseOptions& opt, const dose::Template& t, const std::
         best = dose::variant(t, d.shape, d.at.dose);
         best->id = r.id + "-pta";
         best->about = num(d.at.dose, 6) + " mg every " + dose::duration_text(d.shape.tau) +
-                      (d.shape.over > 0 ? " as infusions over " + dose::duration_text(d.shape.over) : " as a bolus") +
+                      dose::delivery_text(t, d.shape.over) +
                       " (the dose search's " + rule + " over " + std::to_string(pq.size) + " virtual patients, " +
                       rep.who + ", seed " + std::to_string(pq.seed) + ", from " + r.id + ")";
     }

@@ -34,4 +34,8 @@ void write_json(std::ostream& out, const Report& r, const std::vector<Population
 // "8 h", "30 min" is written "0.5 h"; "bolus" for 0.
 std::string duration_text(double h);
 
+// How each dose of the template's maintenance series is given, over `over` hours: " as infusions over 4 h";
+// at once, " as a bolus" on a route named iv and " by route 'oral'" on any other (an oral dose is no bolus).
+std::string delivery_text(const Template& t, double over);
+
 }  // namespace plateau::dose

@@ -94,6 +94,12 @@ std::string duration_text(double h) {
     return h > 0.0 ? report::num(h) + " h" : "bolus";
 }
 
+std::string delivery_text(const Template& t, double over) {
+    if (over > 0.0) return " as infusions over " + duration_text(over);
+    const std::string& route = t.regimen.doses[t.series].route;
+    return route == "iv" ? " as a bolus" : " by route '" + route + "'";
+}
+
 namespace {
 
 // Caution, what was searched (`aim`: for what each candidate's dose is the smallest), how doses are rounded.
@@ -120,7 +126,7 @@ void heading(std::ostream& out, const Report& r, std::size_t candidates, const s
              "Patients  ", "          ");
     wrap(out,
          "the maintenance series (" + report::num(spec.amount) + " mg every " + duration_text(spec.every) +
-             (spec.over > 0 ? " over " + duration_text(spec.over) : " as a bolus") +
+             delivery_text(*r.tmpl, spec.over) +
              " in the template): " + std::to_string(candidates) + " candidate" + (candidates == 1 ? "" : "s") + "; " +
              aim,
          "Varied    ", "          ");
@@ -198,7 +204,7 @@ void write_text(std::ostream& out, const Report& r, const std::vector<Found>& fs
         wrap(out,
              "* recommended (" + rule(r.goals) + "): " + report::num(f.dose, 6) + " mg every " +
                  duration_text(f.shape.tau) +
-                 (f.shape.over > 0 ? " as infusions over " + duration_text(f.shape.over) : " as a bolus") + ", " +
+                 delivery_text(*r.tmpl, f.shape.over) + ", " +
                  report::num(f.daily(), 6) + " mg a day.",
              "", "  ");
         if (f.loading && f.loading->problem.empty())
@@ -267,7 +273,7 @@ void write_text(std::ostream& out, const Report& r, const std::vector<Population
         wrap(out,
              "* recommended (" + population_rule(r.population->share) + "): " + report::num(d.at.dose, 6) +
                  " mg every " + duration_text(d.shape.tau) +
-                 (d.shape.over > 0 ? " as infusions over " + duration_text(d.shape.over) : " as a bolus") + ", " +
+                 delivery_text(*r.tmpl, d.shape.over) + ", " +
                  report::num(d.daily(), 6) + " mg a day: PTA " + report::percent(d.at.pta) + " (" +
                  std::to_string(d.at.attained) + " of " + std::to_string(d.at.total) + ").",
              "", "  ");
