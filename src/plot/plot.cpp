@@ -4,6 +4,7 @@
 #include "plot/plot.hpp"
 
 #include "core/escape.hpp"
+#include "report/caution.hpp"
 
 #include <gnuplot-iostream.h>
 
@@ -274,6 +275,11 @@ std::string build_script(const Figure& f, Format fmt, const std::string& output,
     s << "set encoding utf8\n" << terminal(f, fmt) << "set output " << gp_quote(output) << "\n";
     if (!f.title.empty()) s << "set title " << gp_quote(f.title) << " font ',13'\n";
     if (!f.xlabel.empty()) s << "set xlabel " << gp_quote(f.xlabel) << "\n";
+    // A plot file travels alone, so it carries the caution itself (a figure inlined in a report has the
+    // report's): small, in its own line below the x label.
+    if (fmt != Format::svg_inline)
+        s << "set bmargin 5\nset label 99 " << gp_quote(report::kCaution)
+          << " at screen 0.01, screen 0.02 left font ',8' textcolor rgb '#606060'\n";
     if (!f.ylabel.empty()) s << "set ylabel " << gp_quote(f.ylabel) << "\n";
     s << "set border 3 lc rgb '#404040'\n"
          "set tics nomirror out scale 0.6\n"

@@ -12,6 +12,7 @@
 
 #include "plot/plot.hpp"
 #include "plot/sample.hpp"
+#include "report/caution.hpp"
 #include "trajectory/trajectory.hpp"
 
 namespace fs = std::filesystem;
@@ -159,6 +160,8 @@ TEST_CASE("plot: png, svg and pdf files are written and non-empty", "[plot]") {
     CHECK(rest.find("https://") == std::string::npos);
     CHECK(svg.find("500 mg every 12 h") != std::string::npos);
     CHECK(svg.find("target 4 mg/L") != std::string::npos);
+    // A plot file travels alone: it carries the caution itself (common practice, no source).
+    CHECK(svg.find(report::kCaution) != std::string::npos);
 
     // The extension is read without regard to case.
     plot::render_file(f, dir.file("upper.PNG"));
@@ -185,6 +188,7 @@ TEST_CASE("plot: render_svg gives inline SVG without external references", "[plo
     CHECK(svg.find("1000 mg every 24 h") != std::string::npos);
     CHECK(svg.find("window 2-12 mg/L") != std::string::npos);
     CHECK(svg.find("two regimens &amp; a &lt;target&gt;") != std::string::npos);
+    CHECK(svg.find("Research simulation only") == std::string::npos);  // the report around it carries the caution
     CHECK(svg.find("<target>") == std::string::npos);
     // Ids are prefixed so that two figures can share a page, and every internal reference still resolves.
     CHECK(svg.find("id=\"gnuplot_canvas\"") == std::string::npos);
