@@ -18,18 +18,15 @@
 #include <chrono>
 #include <cmath>
 #include <cstdio>
-#include <filesystem>
-#include <fstream>
 #include <functional>
 #include <random>
 #include <string>
-#include <unistd.h>
 #include <vector>
 
-#include "input/load.hpp"
 #include "sim/schedule.hpp"
 #include "sim/simulate.hpp"
 #include "taylor/stepper.hpp"
+#include "workload.hpp"
 
 namespace {
 
@@ -47,16 +44,14 @@ struct Schedule {
     double end = 0.0;
 };
 
-Schedule workload_schedule() {
+// The regimen's events as the kernel reads them (every event of this workload changes the central infusion rate).
+Schedule kernel_schedule(const std::vector<sim::Event>& events, double end) {
     Schedule s;
-    const double rate = 1000.0 / 0.5;  // mg/h
-    for (int k = 0; k < 42; ++k) {
-        s.time.push_back(8.0 * k);
-        s.rate_change.push_back(rate);
-        s.time.push_back(8.0 * k + 0.5);
-        s.rate_change.push_back(-rate);
+    for (const sim::Event& e : events) {
+        s.time.push_back(e.time);
+        s.rate_change.push_back(e.rate_change[0]);
     }
-    s.end = 14.0 * 24.0;
+    s.end = end;
     return s;
 }
 
@@ -199,26 +194,14 @@ double best_of(int passes, const std::function<void()>& f) {
 }  // namespace
 
 int main() {
-    namespace fs = std::filesystem;
     const std::size_t n = 4096;
     const std::vector<Patient> pts = draw_patients(n);
-    const Schedule sch = workload_schedule();
-
-    // The engine on the same patients: the workload's regimen file, one stepper reused for every patient.
-    const fs::path dir = fs::temp_directory_path() / ("plateau-batch-bench-" + std::to_string(::getpid()));
-    fs::create_directories(dir);
-    const fs::path file = dir / "q8h.toml";
-    {
-        std::ofstream out(file);
-        out << "id = \"bench-q8h\"\nmodel = \"two-compartment-iv\"\nabout = \"fictional\"\n\n[[doses]]\nroute = "
-               "\"iv\"\namount = \"1 g\"\nevery = \"8 h\"\ncount = 42\nover = \"30 min\"\n\n[horizon]\nuntil = "
-               "\"14 d\"\n";
-    }
-    const regimen::Regimen r = input::load_regimen(file.string(), {std::string(PLATEAU_SOURCE_DIR) + "/models"});
-    fs::remove_all(dir);
+    // The engine on the same patients: the workload's regimen, one stepper reused for every patient.
+    const regimen::Regimen r = bench::population_workload();
     const sim::Options opt;
     std::vector<double> params = r.parameter_values();  // cl, v1, q, v2, fu
     const std::vector<sim::Event> events = sim::build_events(r.model, params, sim::make_schedule(r).doses);
+    const Schedule sch = kernel_schedule(events, r.horizon.until);
     taylor::Stepper stepper(sim::model_tape(r.model), params, opt.tol);
     const int p = stepper.order();
     const double safety = std::exp(-2.0) * std::exp(-0.7 / static_cast<double>(p - 1));

@@ -15,20 +15,18 @@
 #include <cstdio>
 #include <cstdlib>
 #include <cstring>
-#include <filesystem>
-#include <fstream>
 #include <functional>
 #include <memory>
 #include <string>
 #include <vector>
 
-#include "input/load.hpp"
 #include "metrics/exposure.hpp"
 #include "problems.hpp"
 #include "runners.hpp"
 #include "sim/schedule.hpp"
 #include "sim/simulate.hpp"
 #include "sim/steady_state.hpp"
+#include "workload.hpp"
 
 namespace plateau::bench {
 namespace {
@@ -143,19 +141,7 @@ void limit_table() {
 // ---- population workload ---------------------------------------------------------------------------------
 
 void population() {
-    namespace fs = std::filesystem;
-    const fs::path dir = fs::temp_directory_path() / ("plateau-engine-bench-" + std::to_string(::getpid()));
-    fs::create_directories(dir);
-    const fs::path file = dir / "q8h.toml";
-    {
-        std::ofstream out(file);
-        out << "id = \"bench-q8h\"\nmodel = \"two-compartment-iv\"\nabout = \"fictional: 1 g every 8 h over 30 min, "
-               "14 days\"\n\n[[doses]]\nroute = \"iv\"\namount = \"1 g\"\nevery = \"8 h\"\ncount = 42\nover = "
-               "\"30 min\"\n\n[targets]\noutput = \"conc\"\nabove = \"4 mg/L\"\nwindow = [\"4 mg/L\", \"40 mg/L\"]\n\n"
-               "[horizon]\nuntil = \"14 d\"\nstep = \"1 h\"\n";
-    }
-    const regimen::Regimen r = input::load_regimen(file.string(), {std::string(PLATEAU_SOURCE_DIR) + "/models"});
-    fs::remove_all(dir);
+    const regimen::Regimen r = population_workload();
     const sim::Options opt;
     const metrics::Request req = metrics::request_from(r, opt);
     sim::Simulation s = sim::simulate(r, opt);
